@@ -1,0 +1,73 @@
+// Rillbook — Nuxt configuration. Secrets never go in the `auth` block (it is public runtime config).
+export default defineNuxtConfig({
+  compatibilityDate: '2026-11-01',
+  devtools: { enabled: false },
+  telemetry: false,
+  modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', '@sidebase/nuxt-auth'],
+  css: ['~/assets/css/main.css'],
+  app: {
+    head: {
+      title: 'Rillbook',
+      htmlAttrs: { lang: 'en' },
+      meta: [
+        { name: 'viewport', content: 'width=device-width, initial-scale=1' },
+        { name: 'theme-color', content: '#0f5c57' },
+      ],
+      link: [{ rel: 'icon', type: 'image/svg+xml', href: '/favicon.svg' }],
+    },
+  },
+  runtimeConfig: {
+    // Filled from NUXT_DATABASE_URL or DATABASE_URL (see server/utils/db.ts).
+    databaseUrl: '',
+    sessionTtlHours: 12,
+    public: {
+      productName: 'Rillbook',
+    },
+  },
+  auth: {
+    isEnabled: true,
+    disableServerSideAuth: false,
+    originEnvKey: 'AUTH_ORIGIN',
+    baseURL: '/api/auth',
+    globalAppMiddleware: true,
+    provider: {
+      type: 'local',
+      endpoints: {
+        signIn: { path: '/login', method: 'post' },
+        signOut: { path: '/logout', method: 'post' },
+        signUp: false,
+        getSession: { path: '/session', method: 'get' },
+      },
+      token: {
+        signInResponseTokenPointer: '/token',
+        type: 'Bearer',
+        cookieName: 'auth.token',
+        headerName: 'Authorization',
+        maxAgeInSeconds: 12 * 60 * 60,
+        sameSiteAttribute: 'lax',
+        secureCookieAttribute: false,
+      },
+      session: {
+        dataType: {
+          id: 'string',
+          email: 'string',
+          name: 'string',
+          role: '\'owner\' | \'technician\' | \'customer\'',
+          customerId: 'string | null',
+        },
+      },
+    },
+    sessionRefresh: { enablePeriodically: false, enableOnWindowFocus: false },
+  },
+  tailwindcss: {
+    cssPath: false,
+    viewer: false,
+  },
+  nitro: {
+    experimental: { tasks: true },
+    scheduledTasks: {},
+  },
+  typescript: {
+    strict: true,
+  },
+})

@@ -1,0 +1,62 @@
+// Loads the demo scenario. Idempotent: every row has a stable id derived from its key and is
+// inserted with ON CONFLICT DO NOTHING, so running it again changes nothing.
+import { createHash } from 'node:crypto'
+import { sql } from 'drizzle-orm'
+import { companies, customers, users } from '../server/db/schema'
+import { closeDb, useDb } from '../server/utils/db'
+import { hashPassword } from '../server/utils/password'
+import { DEMO_PASSWORD, demoCompany, demoCustomers, demoStaff } from './seed/demo-data'
+
+/** A stable UUID (version-5 layout) for a demo key. */
+export function demoId(key: string) {
+  const h = createHash('sha1').update(`rillbook-demo:${key}`).digest('hex')
+  return `${h.slice(0, 8)}-${h.slice(8, 12)}-5${h.slice(13, 16)}-${((Number.parseInt(h.slice(16, 18), 16) & 0x3F) | 0x80).toString(16)}${h.slice(18, 20)}-${h.slice(20, 32)}`
+}
+
+export async function seedDemo() {
+  const db = useDb()
+  const companyId = demoId(demoCompany.key)
+  const passwordHash = await hashPassword(DEMO_PASSWORD)
+  let added = 0
+  await db.transaction(async (tx) => {
+    const { key: _k, ...company } = demoCompany
+    added += (await tx.insert(companies).values({ id: companyId, ...company }).onConflictDoNothing().returning({ id: companies.id })).length
+    for (const s of demoStaff) {
+      added += (await tx.insert(users).values({ id: demoId(s.key), companyId, email: s.email, name: s.name, role: s.role, passwordHash })
+        .onConflictDoNothing().returning({ id: users.id })).length
+    }
+    for (const c of demoCustomers) {
+      const customerId = demoId(c.key)
+      added += (await tx.insert(customers).values({ id: customerId, companyId, name: c.name, kind: c.kind, email: c.email, phone: c.phone, notes: c.notes ?? '' })
+        .onConflictDoNothing().returning({ id: customers.id })).length
+      if (c.login) {
+        added += (await tx.insert(users).values({ id: demoId(`login-${c.key}`), companyId, email: c.login.email, name: c.login.name, role: 'customer', customerId, passwordHash })
+          .onConflictDoNothing().returning({ id: users.id })).length
+      }
+    }
+  })
+  return added
+}
+
+/** True when the database has no company yet (the start command seeds only then). */
+export async function isEmpty() {
+  const { rows } = await useDb().execute<{ n: number }>(sql`select count(*)::int as n from companies`)
+  return (rows[0]?.n ?? 0) === 0
+}
+
+const invokedDirectly = process.argv[1]?.endsWith('seed.ts')
+if (invokedDirectly) {
+  const onlyIfEmpty = process.argv.includes('--if-empty')
+  ;(async () => {
+    if (onlyIfEmpty && !(await isEmpty())) {
+      console.error('[seed] database already has data; not seeding')
+      return
+    }
+    const added = await seedDemo()
+    console.error(added ? `[seed] demo data loaded (${added} rows added)` : '[seed] demo data already present; nothing changed')
+  })().then(() => closeDb(), async (err) => {
+    console.error(`[seed] ${err.stack || err.message}`)
+    process.exitCode = 1
+    await closeDb()
+  })
+}

@@ -1,0 +1,11 @@
+import { signInSchema } from '../../../shared/schemas/auth'
+import { checkCredentials } from '../../services/sign-in'
+
+// Public: the sign-in endpoint. Returns `{ token }` for `Authorization: Bearer`, and sets the
+// same token as an HttpOnly-free `auth.token` cookie the way nuxt-auth's local provider expects.
+export default defineEventHandler(async (event) => {
+  const input = await readBodyAs(event, signInSchema)
+  const user = await checkCredentials(input, requestIp(event))
+  const token = await createSession(user.id, event)
+  return { token, user: { id: user.id, email: user.email, name: user.name, role: user.role, customerId: user.customerId } }
+})

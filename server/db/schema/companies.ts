@@ -1,0 +1,18 @@
+import { char, integer, pgEnum, pgTable, text } from 'drizzle-orm/pg-core'
+import { id, timestamps } from './columns'
+
+export const unitSystem = pgEnum('unit_system', ['us', 'metric'])
+
+/** The care company and its settings. */
+export const companies = pgTable('companies', {
+  id: id(),
+  name: text('name').notNull(),
+  /** ISO 4217 alphabetic code, e.g. USD. */
+  currency: char('currency', { length: 3 }).notNull().default('USD'),
+  /** Sales tax in basis points (825 = 8.25 %), so no floating point reaches money. */
+  taxRateBasisPoints: integer('tax_rate_bp').notNull().default(0),
+  unitSystem: unitSystem('unit_system').notNull().default('us'),
+  /** IANA time zone name, e.g. America/Chicago. */
+  timeZone: text('time_zone').notNull().default('UTC'),
+  ...timestamps,
+})

@@ -1,0 +1,5 @@
+export * from './companies'
+export * from './customers'
+export * from './users'
+export * from './audit'
+export * from './relations'

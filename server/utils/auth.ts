@@ -1,0 +1,104 @@
+import { createHash, randomBytes } from 'node:crypto'
+import { and, eq, gt, isNull } from 'drizzle-orm'
+import type { H3Event } from 'h3'
+import { can, type Permission, type Role } from '../../shared/utils/roles'
+import { sessions, users } from '../db/schema'
+import { useDb } from './db'
+import { httpError } from './errors'
+
+export interface SessionUser {
+  id: string
+  email: string
+  name: string
+  role: Role
+  companyId: string
+  customerId: string | null
+  sessionId: string
+}
+
+export function hashToken(token: string) {
+  return createHash('sha256').update(token).digest('hex')
+}
+
+export function sessionTtlMs() {
+  return Number(process.env.RILLBOOK_SESSION_TTL_HOURS || 12) * 3600_000
+}
+
+/** Starts a session; returns the opaque token the client sends back as `Authorization: Bearer`. */
+export async function createSession(userId: string, event: H3Event) {
+  const token = randomBytes(32).toString('base64url')
+  await useDb().insert(sessions).values({
+    tokenHash: hashToken(token),
+    userId,
+    expiresAt: new Date(Date.now() + sessionTtlMs()),
+    ip: requestIp(event),
+    userAgent: getRequestHeader(event, 'user-agent')?.slice(0, 300) ?? null,
+  })
+  return token
+}
+
+export function requestIp(event: H3Event) {
+  return getRequestIP(event, { xForwardedFor: process.env.RILLBOOK_TRUST_PROXY === '1' }) ?? 'unknown'
+}
+
+function tokenFrom(event: H3Event): string | null {
+  const header = getRequestHeader(event, 'authorization')
+  if (header?.startsWith('Bearer ')) return header.slice(7).trim() || null
+  const cookie = getCookie(event, 'auth.token')
+  if (cookie) return cookie.startsWith('Bearer ') ? cookie.slice(7) : cookie
+  return null
+}
+
+/** The signed-in user, or null. Looked up once per request. */
+export async function getSessionUser(event: H3Event): Promise<SessionUser | null> {
+  if (event.context.sessionUser !== undefined) return event.context.sessionUser
+  const token = tokenFrom(event)
+  let found: SessionUser | null = null
+  if (token) {
+    const [row] = await useDb()
+      .select({
+        id: users.id, email: users.email, name: users.name, role: users.role,
+        companyId: users.companyId, customerId: users.customerId, sessionId: sessions.id,
+      })
+      .from(sessions)
+      .innerJoin(users, eq(users.id, sessions.userId))
+      .where(and(
+        eq(sessions.tokenHash, hashToken(token)),
+        isNull(sessions.revokedAt),
+        gt(sessions.expiresAt, new Date()),
+        eq(users.active, true),
+      ))
+      .limit(1)
+    found = row ?? null
+  }
+  event.context.sessionUser = found
+  return found
+}
+
+/**
+ * The one guard every API route calls first. 401 without a valid session; 403 when the
+ * role is not among `roles` or lacks `permission`.
+ */
+export async function requireUser(event: H3Event, opts: { roles?: readonly Role[], permission?: Permission } = {}): Promise<SessionUser> {
+  const user = await getSessionUser(event)
+  if (!user) throw httpError(401, 'Sign in to continue: no valid session')
+  if (opts.roles && !opts.roles.includes(user.role)) {
+    throw httpError(403, `This needs the ${opts.roles.join(' or ')} role; you are signed in as ${user.role}`)
+  }
+  if (opts.permission && !can(user.role, opts.permission)) {
+    throw httpError(403, `Your role (${user.role}) may not do this (${opts.permission})`)
+  }
+  return user
+}
+
+/** Ends every open session of a user (deactivation, password or role change). */
+export async function revokeUserSessions(userId: string, db = useDb()) {
+  await db.update(sessions).set({ revokedAt: new Date() })
+    .where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt)))
+}
+
+declare module 'h3' {
+  interface H3EventContext {
+    sessionUser?: SessionUser | null
+  }
+}

@@ -1,0 +1,35 @@
+import { drizzle, type NodePgDatabase } from 'drizzle-orm/node-postgres'
+import pg from 'pg'
+import * as schema from '../db/schema'
+
+export type Database = NodePgDatabase<typeof schema>
+/** A transaction handle, accepted wherever a service writes inside someone else's transaction. */
+export type Tx = Parameters<Parameters<Database['transaction']>[0]>[0]
+
+let pool: pg.Pool | undefined
+let instance: Database | undefined
+
+/** The connection string: DATABASE_URL, else the project-local server started by scripts/db.mjs. */
+export function databaseUrl(): string {
+  return process.env.DATABASE_URL
+    || process.env.NUXT_DATABASE_URL
+    || `postgres://postgres@127.0.0.1:${process.env.RILLBOOK_PG_PORT || 54329}/${process.env.RILLBOOK_PG_DATABASE || 'rillbook'}`
+}
+
+/** The one pooled Drizzle instance. Nothing else in the app opens database connections. */
+export function useDb(): Database {
+  if (!instance) {
+    pool = new pg.Pool({ connectionString: databaseUrl(), max: Number(process.env.RILLBOOK_PG_POOL_MAX || 10) })
+    instance = drizzle(pool, { schema })
+  }
+  return instance
+}
+
+export { schema }
+
+/** Closes the pool (scripts and tests; the server keeps it for its lifetime). */
+export async function closeDb() {
+  await pool?.end()
+  pool = undefined
+  instance = undefined
+}

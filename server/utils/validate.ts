@@ -1,0 +1,33 @@
+import type { H3Event } from 'h3'
+import type { z } from 'zod'
+import { fieldsOf, httpError } from './errors'
+
+function check<S extends z.ZodType>(schema: S, value: unknown, where: string): z.output<S> {
+  const parsed = schema.safeParse(value)
+  if (!parsed.success) {
+    const fields = fieldsOf(parsed.error)
+    const [first] = Object.entries(fields)
+    throw httpError(400, `Invalid ${where}: ${first ? `${first[0]} — ${first[1]}` : 'unreadable'}`, { fields })
+  }
+  return parsed.data
+}
+
+/** The request body parsed by `schema`; a 400 naming each bad field otherwise. */
+export async function readBodyAs<S extends z.ZodType>(event: H3Event, schema: S): Promise<z.output<S>> {
+  let body: unknown
+  try {
+    body = await readBody(event)
+  }
+  catch {
+    throw httpError(400, 'Invalid body: it is not valid JSON')
+  }
+  return check(schema, body ?? {}, 'body')
+}
+
+export function queryAs<S extends z.ZodType>(event: H3Event, schema: S): z.output<S> {
+  return check(schema, getQuery(event), 'query')
+}
+
+export function paramsAs<S extends z.ZodType>(event: H3Event, schema: S): z.output<S> {
+  return check(schema, getRouterParams(event, { decode: true }), 'path')
+}

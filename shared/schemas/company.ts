@@ -1,0 +1,28 @@
+import { z } from 'zod'
+
+/** True when the runtime knows this IANA time zone. */
+export function isTimeZone(tz: string) {
+  try {
+    new Intl.DateTimeFormat('en', { timeZone: tz })
+    return true
+  }
+  catch {
+    return false
+  }
+}
+
+/** True when `code` is an ISO 4217 currency the runtime can format. */
+export function isCurrency(code: string) {
+  const supported = (Intl as unknown as { supportedValuesOf?: (k: string) => string[] }).supportedValuesOf?.('currency')
+  return supported ? supported.includes(code) : /^[A-Z]{3}$/.test(code)
+}
+
+export const companyUpdateSchema = z.object({
+  name: z.string().trim().min(1, 'Enter the company name').max(120),
+  currency: z.string().trim().toUpperCase().refine(isCurrency, 'Use an ISO 4217 currency code, e.g. USD'),
+  /** Percent with up to two decimals, stored as basis points. */
+  taxRateBasisPoints: z.number().int('Use whole basis points').min(0).max(5000, 'Tax above 50 % is not plausible'),
+  unitSystem: z.enum(['us', 'metric'], 'Choose US or metric units'),
+  timeZone: z.string().trim().refine(isTimeZone, 'Use an IANA time zone, e.g. America/Chicago'),
+}).partial().refine(v => Object.keys(v).length > 0, { message: 'Nothing to change', path: ['_'] })
+export type CompanyUpdateInput = z.output<typeof companyUpdateSchema>

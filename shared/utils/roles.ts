@@ -1,0 +1,33 @@
+// Roles and what each may do. Adding a role (e.g. an office dispatcher) means adding it to
+// ROLES and listing its permissions below; the server guard and the UI read only this table.
+export const ROLES = ['owner', 'technician', 'customer'] as const
+export type Role = (typeof ROLES)[number]
+
+export const STAFF_ROLES = ['owner', 'technician'] as const satisfies readonly Role[]
+
+export const PERMISSIONS = {
+  'users.manage': ['owner'],
+  'settings.manage': ['owner'],
+  'overview.read': ['owner'],
+  'today.read': ['owner', 'technician'],
+  'portal.read': ['customer'],
+} as const satisfies Record<string, readonly Role[]>
+
+export type Permission = keyof typeof PERMISSIONS
+
+export function can(role: Role, permission: Permission): boolean {
+  return (PERMISSIONS[permission] as readonly Role[]).includes(role)
+}
+
+/** Where each role lands after signing in. */
+export const HOME_BY_ROLE: Record<Role, string> = {
+  owner: '/',
+  technician: '/today',
+  customer: '/portal',
+}
+
+export const ROLE_LABELS: Record<Role, string> = {
+  owner: 'Owner',
+  technician: 'Technician',
+  customer: 'Customer',
+}
