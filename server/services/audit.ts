@@ -1,5 +1,6 @@
-import { auditLog } from '../db/schema'
-import type { Database, Tx } from '../utils/db'
+import { and, count, desc, eq, like, type SQL } from 'drizzle-orm'
+import { auditLog, users } from '../db/schema'
+import { useDb, type Database, type Tx } from '../utils/db'
 
 export interface AuditEntry {
   action: string
@@ -22,4 +23,22 @@ export async function recordAudit(db: Database | Tx, entry: AuditEntry) {
     detail: entry.detail ?? {},
     ip: entry.ip ?? null,
   })
+}
+
+export async function listAudit(companyId: string, q: { page: number, pageSize: number, subjectId?: string, action?: string }) {
+  const db = useDb()
+  const where: SQL[] = [eq(auditLog.companyId, companyId)]
+  if (q.subjectId) where.push(eq(auditLog.subjectId, q.subjectId))
+  if (q.action) where.push(like(auditLog.action, `${q.action}%`))
+  const cond = and(...where)
+  const [rows, [total]] = await Promise.all([
+    db.select({
+      id: auditLog.id, at: auditLog.at, action: auditLog.action, actorUserId: auditLog.actorUserId,
+      actorName: users.name, subjectType: auditLog.subjectType, subjectId: auditLog.subjectId, detail: auditLog.detail, ip: auditLog.ip,
+    }).from(auditLog).leftJoin(users, eq(users.id, auditLog.actorUserId))
+      .where(cond).orderBy(desc(auditLog.at), desc(auditLog.id))
+      .limit(q.pageSize).offset((q.page - 1) * q.pageSize),
+    db.select({ n: count() }).from(auditLog).where(cond),
+  ])
+  return { rows, total: total?.n ?? 0, page: q.page, pageSize: q.pageSize }
 }

@@ -8,6 +8,7 @@ export const STAFF_ROLES = ['owner', 'technician'] as const satisfies readonly R
 export const PERMISSIONS = {
   'users.manage': ['owner'],
   'settings.manage': ['owner'],
+  'audit.read': ['owner'],
   'overview.read': ['owner'],
   'today.read': ['owner', 'technician'],
   'portal.read': ['customer'],

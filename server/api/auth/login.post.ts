@@ -1,8 +1,8 @@
 import { signInSchema } from '../../../shared/schemas/auth'
 import { checkCredentials } from '../../services/sign-in'
 
-// Public: the sign-in endpoint. Returns `{ token }` for `Authorization: Bearer`, and sets the
-// same token as an HttpOnly-free `auth.token` cookie the way nuxt-auth's local provider expects.
+// Public: the sign-in endpoint. Returns `{ token }` for `Authorization: Bearer`; in the browser
+// nuxt-auth's local provider keeps the token in its `auth.token` cookie, which the guard also reads.
 export default defineEventHandler(async (event) => {
   const input = await readBodyAs(event, signInSchema)
   const user = await checkCredentials(input, requestIp(event))

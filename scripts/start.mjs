@@ -1,0 +1,68 @@
+#!/usr/bin/env node
+// The one-command runner: PostgreSQL (unless DATABASE_URL is set) → migrations → demo data when
+// the database is empty → build when none exists → the app on http://HOST:PORT.
+//   node scripts/start.mjs          built server (npm start)
+//   node scripts/start.mjs --dev    Nuxt's dev server (npm run dev)
+import { spawn, spawnSync } from 'node:child_process'
+import { existsSync } from 'node:fs'
+import net from 'node:net'
+import { dirname, resolve } from 'node:path'
+import { fileURLToPath } from 'node:url'
+import { start as startDb } from './db.mjs'
+import { runMigrations } from './migrate.mjs'
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), '..')
+const dev = process.argv.includes('--dev')
+const host = process.env.HOST || '127.0.0.1'
+const port = Number(process.env.PORT || 3000)
+const bin = name => resolve(root, 'node_modules', '.bin', name)
+const say = msg => process.stderr.write(`[start] ${msg}\n`)
+
+function portAnswers(h, p) {
+  return new Promise((done) => {
+    const s = net.connect({ host: h, port: p })
+    s.once('connect', () => { s.destroy(); done(true) })
+    s.once('error', () => done(false))
+  })
+}
+
+async function main() {
+  if (await portAnswers(host, port)) {
+    throw new Error(`something already listens on ${host}:${port}; stop it or set PORT`)
+  }
+  if (!process.env.DATABASE_URL) process.env.DATABASE_URL = await startDb()
+  else say('using DATABASE_URL')
+  await runMigrations(process.env.DATABASE_URL)
+  say('migrations applied')
+  const seeded = spawnSync(bin('tsx'), ['scripts/seed.ts', '--if-empty'], { cwd: root, stdio: 'inherit', env: process.env })
+  if (seeded.status !== 0) throw new Error('seeding the demo data failed')
+
+  const env = { ...process.env, HOST: host, PORT: String(port), NITRO_HOST: host, NITRO_PORT: String(port) }
+  let child
+  if (dev) {
+    child = spawn(bin('nuxt'), ['dev', '--host', host, '--port', String(port)], { cwd: root, stdio: 'inherit', env })
+  }
+  else {
+    const entry = resolve(root, '.output/server/index.mjs')
+    if (!existsSync(entry)) {
+      say('no build found: building (about 15 s)…')
+      const built = spawnSync(bin('nuxt'), ['build'], { cwd: root, stdio: 'inherit', env: process.env })
+      if (built.status !== 0) throw new Error('the build failed')
+    }
+    child = spawn(process.execPath, [entry], { cwd: root, stdio: 'inherit', env })
+    // The built server keeps running even when it cannot listen: check that it does.
+    const deadline = Date.now() + 20_000
+    while (!(await portAnswers(host, port))) {
+      if (Date.now() > deadline || child.exitCode !== null) throw new Error(`the app did not start listening on ${host}:${port}`)
+      await new Promise(r => setTimeout(r, 200))
+    }
+    say(`Rillbook is ready on http://${host}:${port} (Ctrl-C stops it; npm run db:stop stops the database)`)
+  }
+  for (const sig of ['SIGINT', 'SIGTERM']) process.on(sig, () => child.kill(sig))
+  child.on('exit', code => process.exit(code ?? 0))
+}
+
+main().catch((err) => {
+  say(err.message)
+  process.exit(1)
+})

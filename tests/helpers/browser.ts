@@ -1,0 +1,31 @@
+import { mkdirSync } from 'node:fs'
+import { resolve } from 'node:path'
+import { chromium, type Browser, type Page } from 'playwright-core'
+import { baseUrl, DEMO_PASSWORD } from './api'
+
+export const ARTIFACTS = resolve(import.meta.dirname, '../artifacts')
+mkdirSync(ARTIFACTS, { recursive: true })
+
+export const VIEWPORTS = {
+  phone: { width: 390, height: 844 },
+  desktop: { width: 1280, height: 800 },
+} as const
+
+export function launch(): Promise<Browser> {
+  return chromium.launch({
+    executablePath: process.env.CHROMIUM_PATH || '/usr/bin/chromium',
+    args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--disable-background-networking',
+      '--disable-component-update', '--disable-sync', '--no-first-run'],
+  })
+}
+
+export async function signInThroughForm(page: Page, email: string, password = DEMO_PASSWORD) {
+  await page.goto(`${baseUrl()}/login`)
+  await page.getByLabel('E-mail').fill(email)
+  await page.getByLabel('Password').fill(password)
+  await page.getByRole('button', { name: 'Sign in' }).click()
+}
+
+export function shot(page: Page, name: string) {
+  return page.screenshot({ path: resolve(ARTIFACTS, `${name}.png`), fullPage: true })
+}
