@@ -71,3 +71,11 @@ export default defineNuxtConfig({
     strict: true,
   },
 })
+
+// Nuxt 4.4's schema types the `nitro` block with a narrow fallback unless the builder registers
+// its config type; register Nitro 2's so scheduled tasks type-check.
+declare module '@nuxt/schema' {
+  interface NitroTypes {
+    config: import('nitropack').NitroConfig
+  }
+}

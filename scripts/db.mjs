@@ -1,6 +1,6 @@
 #!/usr/bin/env node
 // PostgreSQL lifecycle for Rillbook: a project-local cluster under .data/, listening on 127.0.0.1 only.
-// Usage: node scripts/db.mjs start|stop|status
+// Usage: node scripts/db.mjs install|start|stop|status   (install: only make sure the server binaries exist)
 // When DATABASE_URL is set, nothing here runs: the app uses that server as it is.
 import { execFileSync, spawnSync } from 'node:child_process'
 import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync, statSync, chmodSync } from 'node:fs'
@@ -168,6 +168,9 @@ if (process.argv[1] && resolve(process.argv[1]) === fileURLToPath(import.meta.ur
     if (process.env.DATABASE_URL && cmd !== 'status') {
       log('DATABASE_URL is set: using that server; nothing to start or stop here')
     }
+    else if (cmd === 'install') {
+      console.log(ensureBinaries())
+    }
     else if (cmd === 'start') {
       console.log(await start())
     }
@@ -185,7 +188,7 @@ if (process.argv[1] && resolve(process.argv[1]) === fileURLToPath(import.meta.ur
       }
     }
     else {
-      console.error('usage: node scripts/db.mjs start|stop|status')
+      console.error('usage: node scripts/db.mjs install|start|stop|status')
       process.exitCode = 2
     }
   }
