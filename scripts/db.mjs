@@ -87,10 +87,25 @@ function run(bin, tool, args, opts = {}) {
   return spawnSync(cmd, argv, { encoding: 'utf8', ...opts })
 }
 
+/** The postmaster pid from postmaster.pid when that process is alive (a zombie counts as dead). */
+function livePostmasterPid(cfg) {
+  const pidFile = join(cfg.dataDir, 'postmaster.pid')
+  if (!existsSync(pidFile)) return null
+  const pid = Number(readFileSync(pidFile, 'utf8').split('\n')[0])
+  if (!pid) return null
+  try {
+    const state = readFileSync(`/proc/${pid}/status`, 'utf8').match(/^State:\s+(\w)/m)?.[1]
+    return state && state !== 'Z' ? pid : null
+  }
+  catch {
+    return null
+  }
+}
+
 function isRunning(bin, cfg) {
   if (!existsSync(join(cfg.dataDir, 'PG_VERSION'))) return false
   const r = run(bin, 'pg_ctl', ['-D', cfg.dataDir, 'status'])
-  return r.status === 0
+  return r.status === 0 && livePostmasterPid(cfg) !== null
 }
 
 export async function start(cfg = clusterConfig()) {

@@ -76,3 +76,18 @@ describe('signing in through the form', () => {
     await context.close()
   })
 })
+
+describe('the error page', () => {
+  it('is friendly and offers a way home', async () => {
+    const context = await browser.newContext({ viewport: VIEWPORTS.phone })
+    const page = await context.newPage()
+    await signInThroughForm(page, demo.tess)
+    await page.waitForURL(url => url.pathname === '/today')
+    await page.goto(`${baseUrl()}/no-such-page`)
+    await page.getByRole('heading', { name: 'We could not find that page' }).waitFor()
+    await shot(page, 'error-404-phone')
+    await page.getByRole('button', { name: 'Back to my home' }).click()
+    await page.waitForURL(url => url.pathname === '/today')
+    await context.close()
+  })
+})
