@@ -102,3 +102,14 @@ declare module 'h3' {
     sessionUser?: SessionUser | null
   }
 }
+
+export function isStaff(user: SessionUser) {
+  return user.role === 'owner' || user.role === 'technician'
+}
+
+/** The customer a customer-role user may see; staff see every customer of their company. */
+export function ownCustomerId(user: SessionUser): string | null {
+  if (isStaff(user)) return null
+  if (!user.customerId) throw httpError(403, 'This sign-in is not linked to a customer')
+  return user.customerId
+}

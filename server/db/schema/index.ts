@@ -1,5 +1,7 @@
 export * from './companies'
 export * from './customers'
+export * from './sites'
+export * from './features'
 export * from './users'
 export * from './audit'
 export * from './relations'
