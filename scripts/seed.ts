@@ -1,11 +1,14 @@
 // Loads the demo scenario. Idempotent: every row has a stable id derived from its key and is
 // inserted with ON CONFLICT DO NOTHING, so running it again changes nothing.
 import { createHash } from 'node:crypto'
-import { sql } from 'drizzle-orm'
-import { companies, customers, users } from '../server/db/schema'
+import { eq, sql } from 'drizzle-orm'
+import { companies, customerContacts, customers, sites, users, waterFeatures } from '../server/db/schema'
+import { ensureDefaultProfiles } from '../server/services/range-profiles'
+import { featureSurfaceAreaM2, featureVolumeLitres } from '../shared/utils/water-chemistry'
 import { closeDb, useDb } from '../server/utils/db'
 import { hashPassword } from '../server/utils/password'
 import { DEMO_PASSWORD, demoCompany, demoCustomers, demoStaff } from './seed/demo-data'
+import { demoSitesAndFeatures } from './seed/demo-features'
 
 /** A stable UUID (version-5 layout) for a demo key. */
 export function demoId(key: string) {
@@ -27,12 +30,35 @@ export async function seedDemo() {
     }
     for (const c of demoCustomers) {
       const customerId = demoId(c.key)
-      added += (await tx.insert(customers).values({ id: customerId, companyId, name: c.name, kind: c.kind, email: c.email, phone: c.phone, notes: c.notes ?? '' })
-        .onConflictDoNothing().returning({ id: customers.id })).length
+      added += (await tx.insert(customers).values({
+        id: customerId, companyId, name: c.name, kind: c.kind, notes: c.notes ?? '', tags: c.tags ?? [],
+        billingLine1: c.billing.line1, billingCity: c.billing.city, billingPostcode: c.billing.postcode, billingCountry: 'US', billingRegion: 'LF',
+      }).onConflictDoNothing().returning({ id: customers.id })).length
+      // Contacts only for a customer that has none (an upgraded database got them by migration).
+      const [hasContacts] = await tx.select({ id: customerContacts.id }).from(customerContacts).where(eq(customerContacts.customerId, customerId)).limit(1)
+      for (const [position, contact] of hasContacts ? [] : c.contacts.entries()) {
+        added += (await tx.insert(customerContacts).values({ id: demoId(`contact-${c.key}-${position}`), customerId, position, ...contact })
+          .onConflictDoNothing().returning({ id: customerContacts.id })).length
+      }
       if (c.login) {
         added += (await tx.insert(users).values({ id: demoId(`login-${c.key}`), companyId, email: c.login.email, name: c.login.name, role: 'customer', customerId, passwordHash })
           .onConflictDoNothing().returning({ id: users.id })).length
       }
+    }
+    await ensureDefaultProfiles(tx, companyId)
+    const { sites: demoSites, features } = demoSitesAndFeatures(demoCustomers.map(c => c.key))
+    for (const site of demoSites) {
+      const { key, customerKey, ...fields } = site
+      added += (await tx.insert(sites).values({ id: demoId(key), companyId, customerId: demoId(customerKey), ...fields })
+        .onConflictDoNothing().returning({ id: sites.id })).length
+    }
+    const customerOfSite = new Map(demoSites.map(s => [s.key, demoId(s.customerKey)]))
+    for (const f of features) {
+      const { key, siteKey, ...fields } = f
+      added += (await tx.insert(waterFeatures).values({
+        id: demoId(key), companyId, siteId: demoId(siteKey), customerId: customerOfSite.get(siteKey)!, ...fields,
+        computedVolumeL: featureVolumeLitres(f.shape), surfaceAreaM2: featureSurfaceAreaM2(f.shape), measuredVolumeL: f.measuredVolumeL ?? null,
+      }).onConflictDoNothing().returning({ id: waterFeatures.id })).length
     }
   })
   return added

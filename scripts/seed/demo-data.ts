@@ -17,7 +17,13 @@ export const demoStaff = [
 ]
 
 type Kind = 'household' | 'business' | 'association' | 'public'
-interface DemoCustomer { key: string, name: string, kind: Kind, email: string, phone: string, login?: { email: string, name: string }, notes?: string }
+interface DemoContact { name: string, email: string | null, phone: string | null, getsReports: boolean, getsInvoices: boolean, getsAlerts: boolean }
+interface DemoCustomer {
+  key: string, name: string, kind: Kind, email: string, phone: string, notes?: string, tags: string[]
+  login?: { email: string, name: string }
+  contacts: DemoContact[]
+  billing: { line1: string, city: string, postcode: string }
+}
 
 const households: Array<[string, string]> = [
   ['whitcombe', 'Priya Whitcombe'], ['brannock', 'Owen Brannock'], ['feldspar', 'Ines Feldspar'],
@@ -45,4 +51,14 @@ export const demoCustomers: DemoCustomer[] = [
   { key: 'customer-fernhollow-hoa', name: 'Fern Hollow Homeowners Association', kind: 'association', email: 'manager@fernhollow.example', phone: '555-0153' },
   { key: 'customer-copperleaf', name: 'Copperleaf Dental Studio', kind: 'business', email: 'frontdesk@copperleaf.example', phone: '555-0154' },
   { key: 'customer-larchfield-library', name: 'Larchfield Branch Library', kind: 'public', email: 'grounds@larchfieldlibrary.example', phone: '555-0155' },
-].map(c => ({ ...c, login: { email: c.email, name: c.name } }))
+].map((c, i): DemoCustomer => ({
+  ...c,
+  login: { email: c.email, name: c.name },
+  tags: c.kind === 'household' ? (i % 3 === 0 ? ['koi'] : []) : [c.kind === 'association' ? 'hoa' : 'commercial'],
+  contacts: [
+    { name: c.kind === 'household' ? c.name : `${c.name} office`, email: c.email, phone: c.phone, getsReports: true, getsInvoices: true, getsAlerts: true },
+    ...(c.kind === 'association' ? [{ name: 'Grounds committee chair', email: `grounds@${c.email.split('@')[1]}`, phone: null, getsReports: true, getsInvoices: false, getsAlerts: true }] : []),
+    ...(c.key === 'customer-lantern-court' ? [{ name: 'Accounts payable', email: 'accounts@lanterncourt.example', phone: '555-0161', getsReports: false, getsInvoices: true, getsAlerts: false }] : []),
+  ],
+  billing: { line1: `${100 + i * 7} ${['Alder Row', 'Bittern Lane', 'Cressway', 'Iris Walk'][i % 4]}`, city: 'Larchfield', postcode: `5${4100 + (i % 9) * 11}` },
+}))

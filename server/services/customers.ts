@@ -7,14 +7,17 @@ import { httpError } from '../utils/errors'
 import { containsPattern } from '../utils/like'
 import { recordAudit } from './audit'
 
-const featureCount = sql<number>`(select count(*)::int from ${waterFeatures} wf where wf.customer_id = ${customers.id} and wf.archived_at is null)`
+// Drizzle leaves column names unqualified in a one-table select, so the correlated subqueries
+// name the outer column explicitly.
+const outerId = sql`${sql.identifier('customers')}.${sql.identifier('id')}`
+const featureCount = sql<number>`(select count(*)::int from ${waterFeatures} wf where wf.customer_id = ${outerId} and wf.archived_at is null)`
 
 const listColumns = {
   id: customers.id, name: customers.name, kind: customers.kind, active: customers.active,
   tags: customers.tags, billingCity: customers.billingCity, archivedAt: customers.archivedAt, createdAt: customers.createdAt,
   features: featureCount,
-  primaryEmail: sql<string | null>`(select cc.email from ${customerContacts} cc where cc.customer_id = ${customers.id} order by cc.position limit 1)`,
-  primaryPhone: sql<string | null>`(select cc.phone from ${customerContacts} cc where cc.customer_id = ${customers.id} order by cc.position limit 1)`,
+  primaryEmail: sql<string | null>`(select cc.email from ${customerContacts} cc where cc.customer_id = ${outerId} order by cc.position limit 1)`,
+  primaryPhone: sql<string | null>`(select cc.phone from ${customerContacts} cc where cc.customer_id = ${outerId} order by cc.position limit 1)`,
 }
 
 /** WHERE conditions that keep a caller inside their tenancy. */
@@ -42,8 +45,8 @@ export async function listCustomers(actor: SessionUser, q: CustomerListQuery) {
     where.push(or(
       ilike(customers.name, like),
       sql`exists (select 1 from unnest(${customers.tags}) t where t ilike ${like})`,
-      exists(db.select({ x: sql`1` }).from(customerContacts).where(and(eq(customerContacts.customerId, customers.id), or(ilike(customerContacts.email, like), ilike(customerContacts.phone, like), ilike(customerContacts.name, like))))),
-      exists(db.select({ x: sql`1` }).from(sites).where(and(eq(sites.customerId, customers.id), or(ilike(sites.line1, like), ilike(sites.city, like), ilike(sites.postcode, like))))),
+      exists(db.select({ x: sql`1` }).from(customerContacts).where(and(sql`${customerContacts.customerId} = ${outerId}`, or(ilike(customerContacts.email, like), ilike(customerContacts.phone, like), ilike(customerContacts.name, like))))),
+      exists(db.select({ x: sql`1` }).from(sites).where(and(sql`${sites.customerId} = ${outerId}`, or(ilike(sites.line1, like), ilike(sites.city, like), ilike(sites.postcode, like))))),
     )!)
   }
   const sortCol = { name: customers.name, kind: customers.kind, createdAt: customers.createdAt, features: featureCount }[q.sort]

@@ -1,11 +1,12 @@
 import type { H3Event } from 'h3'
 import type { z } from 'zod'
-import { fieldsOf, httpError } from './errors'
+import { fieldErrors } from '../../shared/utils/field-errors'
+import { httpError } from './errors'
 
 function check<S extends z.ZodType>(schema: S, value: unknown, where: string): z.output<S> {
   const parsed = schema.safeParse(value)
   if (!parsed.success) {
-    const fields = fieldsOf(parsed.error)
+    const fields = fieldErrors(parsed.error)
     const [first] = Object.entries(fields)
     throw httpError(400, `Invalid ${where}: ${first ? `${first[0]} — ${first[1]}` : 'unreadable'}`, { fields })
   }

@@ -65,6 +65,8 @@ export interface ParameterRange {
   target?: number
   source: string
   sourceKind: SourceKind
+  /** Optional: the source of individual bounds when they differ (e.g. act published, watch common practice). */
+  boundSources?: RangeBoundSources
 }
 
 export type RangeTable = Partial<Record<Parameter, ParameterRange>>
@@ -103,3 +105,32 @@ export interface ReadingEvaluation {
 
 /** A product's label rate: `amount` of `unit` per `perLitres` of pond water. */
 export interface LabelRate { amount: number, unit: string, perLitres: number }
+
+/** The bounds of a `ParameterRange` that can carry their own source. */
+export type RangeBound = 'actBelow' | 'watchBelow' | 'watchAbove' | 'actAbove' | 'target'
+
+/** Where one bound comes from, when the bounds of one parameter have different sources. */
+export interface BoundSource { source: string, sourceKind: SourceKind }
+
+/** Per-bound sources of a range (optional; the range's own `source` covers the rest). */
+export type RangeBoundSources = Partial<Record<RangeBound, BoundSource>>
+
+export type DosingSuggestionKey = 'kh_buffer' | 'water_change_ammonia' | 'water_change_nitrite' | 'salt_for_nitrite' | 'dechlorinator'
+
+/** One piece of dosing advice, shown with the inputs it was computed from. */
+export interface DosingSuggestion {
+  key: DosingSuggestionKey
+  /** Plain name of what to add, e.g. 'sodium bicarbonate (KH buffer)'; never a brand. */
+  product: string
+  /** How much; null when it cannot be computed (e.g. no label rate entered). */
+  amount: number | null
+  /** 'g', 'kg', 'L', or the label rate's unit. */
+  unit: string
+  /** For water changes: the fraction (0..1) of the volume to replace. */
+  fraction?: number
+  /** Why, in plain words. */
+  reason: string
+  /** What the amount was computed from (volumeL, fromDKH, toDKH, …). */
+  inputs: Record<string, number | string>
+  cautions: string[]
+}

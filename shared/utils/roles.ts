@@ -12,6 +12,11 @@ export const PERMISSIONS = {
   'overview.read': ['owner'],
   'today.read': ['owner', 'technician'],
   'portal.read': ['customer'],
+  /** Customers, sites and features: customers read only their own (enforced in the services). */
+  'records.read': ['owner', 'technician', 'customer'],
+  'records.edit': ['owner', 'technician'],
+  'profiles.manage': ['owner'],
+  'water.evaluate': ['owner', 'technician', 'customer'],
 } as const satisfies Record<string, readonly Role[]>
 
 export type Permission = keyof typeof PERMISSIONS

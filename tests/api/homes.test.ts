@@ -19,13 +19,13 @@ describe('each role reaches its home data', () => {
     expect(r.body.technician.name).toBe('Tess Okafor')
   })
 
-  it('customer gets only their own customer record', async () => {
-    const priya = await api('/api/portal/me', { token: await tokenFor(demo.priya) })
+  it('customer lists only their own customer record', async () => {
+    const priya = await api('/api/customers', { token: await tokenFor(demo.priya) })
     expect(priya.status).toBe(200)
-    expect(priya.body.customer.name).toBe('Priya Whitcombe')
-    const ash = await api('/api/portal/me', { token: await tokenFor(demo.ashgrove) })
-    expect(ash.body.customer.name).toBe('Ashgrove Community Garden')
-    expect(ash.body.customer.kind).toBe('public')
+    expect(priya.body.rows.map((r: { name: string }) => r.name)).toEqual(['Priya Whitcombe'])
+    const ash = await api('/api/customers', { token: await tokenFor(demo.ashgrove) })
+    expect(ash.body.rows.map((r: { name: string }) => r.name)).toEqual(['Ashgrove Community Garden'])
+    expect(ash.body.rows[0].kind).toBe('public')
   })
 })
 

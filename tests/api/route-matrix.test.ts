@@ -20,9 +20,26 @@ const MATRIX: Record<string, Who[] | 'public'> = {
   'GET /api/users': ['owner'],
   'POST /api/users': ['owner'],
   'PATCH /api/users/:id': ['owner'],
-  'GET /api/customers': ['owner', 'technician'],
   'GET /api/today': ['owner', 'technician'],
-  'GET /api/portal/me': ['customer'],
+  // Customers read only their own records: that is checked in tenancy.test.ts.
+  'GET /api/customers': ['owner', 'technician', 'customer'],
+  'POST /api/customers': ['owner', 'technician'],
+  'GET /api/customers/:id': ['owner', 'technician', 'customer'],
+  'PATCH /api/customers/:id': ['owner', 'technician'],
+  'DELETE /api/customers/:id': ['owner', 'technician'],
+  'GET /api/sites': ['owner', 'technician', 'customer'],
+  'POST /api/sites': ['owner', 'technician'],
+  'GET /api/sites/:id': ['owner', 'technician', 'customer'],
+  'PATCH /api/sites/:id': ['owner', 'technician'],
+  'DELETE /api/sites/:id': ['owner', 'technician'],
+  'GET /api/features': ['owner', 'technician', 'customer'],
+  'POST /api/features': ['owner', 'technician'],
+  'GET /api/features/:id': ['owner', 'technician', 'customer'],
+  'PATCH /api/features/:id': ['owner', 'technician'],
+  'DELETE /api/features/:id': ['owner', 'technician'],
+  'GET /api/range-profiles': ['owner', 'technician'],
+  'PATCH /api/range-profiles/:id': ['owner'],
+  'POST /api/water/evaluate': ['owner', 'technician', 'customer'],
 }
 
 const routes = listApiRoutes()

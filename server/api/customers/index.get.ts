@@ -1,8 +1,14 @@
-import { pageQuery } from '../../../shared/schemas/common'
-import { STAFF_ROLES } from '../../../shared/utils/roles'
+import { z } from 'zod'
+import { CUSTOMER_KINDS, CUSTOMER_SORTS } from '../../../shared/schemas/customers'
+import { listQuery } from '../../../shared/schemas/lists'
 import { listCustomers } from '../../services/customers'
 
+const query = listQuery(CUSTOMER_SORTS).extend({
+  kind: z.enum(CUSTOMER_KINDS).optional(),
+  tag: z.string().trim().toLowerCase().max(40).optional(),
+})
+
 export default defineEventHandler(async (event) => {
-  const user = await requireUser(event, { roles: STAFF_ROLES })
-  return listCustomers(user, queryAs(event, pageQuery))
+  const user = await requireUser(event, { permission: 'records.read' })
+  return listCustomers(user, queryAs(event, query))
 })

@@ -1,0 +1,9 @@
+import { evaluateRequestSchema } from '../../../shared/schemas/water'
+import { evaluateWater } from '../../services/water'
+
+// Computed values, statuses and dosing suggestions for a reading; customers only for their own features.
+export default defineEventHandler(async (event) => {
+  const user = await requireUser(event, { permission: 'water.evaluate' })
+  const input = await readBodyAs(event, evaluateRequestSchema)
+  return evaluateWater(user, input)
+})

@@ -1,0 +1,218 @@
+// Status of one water test against a range table, with a plain-words reason per parameter.
+import type {
+  Parameter, ParameterEvaluation, ParameterRange, RangeTable, ReadingEvaluation, ReadingStatus, WaterReading,
+} from '../../types/water'
+import { PARAMETERS } from '../../types/water'
+import { ammoniaToNitrogen, nitrogenToAmmonia, unionizedAmmoniaFraction } from './ammonia'
+import { WaterInputError } from './errors'
+import { oxygenSaturationMgL, STANDARD_PRESSURE_KPA } from './oxygen'
+import { saltGLToChlorideMgL } from './units'
+import { checkPH, checkPressureKPa, checkTempC, finite, nonNegative } from './validate'
+
+/** Keep chloride at least 10 × nitrite (Durborow, Crosby & Brunson, SRAC 462, Nitrite in Fish Ponds). */
+export const NITRITE_CHLORIDE_MIN_RATIO = 10
+
+const STATUS_RANK: Record<ReadingStatus, number> = { ok: 0, watch: 1, act: 2 }
+
+/** The worst of some statuses ('ok' for none). */
+export function worstReadingStatus(statuses: Iterable<ReadingStatus>): ReadingStatus {
+  let worst: ReadingStatus = 'ok'
+  for (const s of statuses) if (STATUS_RANK[s] > STATUS_RANK[worst]) worst = s
+  return worst
+}
+
+const CONCENTRATIONS = [
+  'totalAmmoniaMgL', 'nitriteMgL', 'nitrateMgL', 'khMgL', 'ghMgL', 'dissolvedOxygenMgL', 'saltGL', 'chlorineMgL', 'phosphateMgL',
+] as const
+
+type Measured = Partial<Record<keyof WaterReading, number>>
+
+const present = (v: number | null | undefined): v is number => v !== null && v !== undefined
+
+/** Checks every present value of a reading; returns the present numbers. Throws WaterInputError. */
+export function validateWaterReading(reading: WaterReading): Measured {
+  if (reading === null || typeof reading !== 'object') throw new WaterInputError('reading', 'reading is required')
+  const out: Measured = {}
+  if (present(reading.temperatureC)) out.temperatureC = checkTempC(reading.temperatureC, 'temperatureC')
+  if (present(reading.pH)) out.pH = checkPH(reading.pH, 'pH')
+  for (const f of CONCENTRATIONS) {
+    const v = reading[f]
+    if (present(v)) out[f] = nonNegative(v, f)
+  }
+  if (present(reading.waterLevelMm)) out.waterLevelMm = finite(reading.waterLevelMm, 'waterLevelMm')
+  if (reading.ammoniaBasis !== undefined && reading.ammoniaBasis !== 'N' && reading.ammoniaBasis !== 'NH3') {
+    throw new WaterInputError('ammoniaBasis', 'ammoniaBasis must be "N" or "NH3"')
+  }
+  return out
+}
+
+/** Total ammonia of a reading as N (converting from the NH3 basis when the kit reports that), or null. */
+export function totalAmmoniaAsN(reading: WaterReading): number | null {
+  const v = reading.totalAmmoniaMgL
+  if (!present(v)) return null
+  const tan = nonNegative(v, 'totalAmmoniaMgL')
+  return reading.ammoniaBasis === 'NH3' ? ammoniaToNitrogen(tan) : tan
+}
+
+interface Wording { label: string, unit: string, low?: [watch: string, act: string], high?: [watch: string, act: string] }
+
+const WORDS: Record<Parameter, Wording> = {
+  temperatureC: {
+    label: 'Water temperature', unit: '°C',
+    low: ['cold water — feed less', 'very cold — stop feeding and keep a hole in any ice'],
+    high: ['warm water holds less oxygen — add aeration and shade', 'too warm for fish — aerate, shade and feed less — act today'],
+  },
+  pH: {
+    label: 'pH', unit: '',
+    low: ['pH is drifting down — check KH', 'the water is turning acidic — check KH'],
+    high: ['the water is quite alkaline — ammonia is more toxic as pH rises', 'the water is strongly alkaline — look for fresh mortar or concrete and heavy algae — act today'],
+  },
+  totalAmmoniaMgL: {
+    label: 'Total ammonia', unit: 'mg/L as N',
+    high: ['ammonia is building up — feed less and check the filter', 'ammonia is high — change some water and feed less — act today'],
+  },
+  nh3MgL: {
+    label: 'Un-ionized ammonia', unit: 'mg/L',
+    high: ['stressful to fish over time — feed less and check the filter', 'harmful to fish — act today'],
+  },
+  nitriteMgL: {
+    label: 'Nitrite', unit: 'mg/L',
+    high: ['the filter is not keeping up — feed less and retest', 'harmful to fish — change some water — act today'],
+  },
+  nitrateMgL: {
+    label: 'Nitrate', unit: 'mg/L',
+    high: ['feeds algae — plan a partial water change', 'high — change some water and review feeding and stocking'],
+  },
+  khMgL: {
+    label: 'KH', unit: 'mg/L',
+    low: ['the buffer is getting low — pH may swing', 'the water has almost no buffer — pH can crash — act today'],
+  },
+  ghMgL: { label: 'GH', unit: 'mg/L' },
+  dissolvedOxygenMgL: {
+    label: 'Dissolved oxygen', unit: 'mg/L',
+    low: ['oxygen is getting low — add aeration', 'fish may struggle for oxygen — aerate now — act today'],
+  },
+  doSaturationPct: {
+    label: 'Oxygen saturation', unit: '%',
+    low: ['the water holds less oxygen than it could — add aeration or water movement', 'very little oxygen for this temperature — aerate now — act today'],
+  },
+  saltGL: {
+    label: 'Salt', unit: 'g/L',
+    high: ['more salt than a standing pond level — hard on plants', 'as strong as a short treatment bath — too much to leave in the pond; change some water'],
+  },
+  chlorineMgL: {
+    label: 'Chlorine', unit: 'mg/L',
+    high: ['chlorine from tap water — add dechlorinator', 'chlorine is toxic to fish — add dechlorinator now — act today'],
+  },
+  phosphateMgL: {
+    label: 'Phosphate', unit: 'mg/L',
+    high: ['feeds algae — check feeding and plant cover', 'strongly feeds algae — check feeding, plant cover and fertiliser run-off'],
+  },
+}
+
+function fmt(parameter: Parameter, v: number): string {
+  const s = Math.abs(v) >= 1000 ? String(Math.round(v)) : String(Number(v.toPrecision(3)))
+  if (parameter === 'pH' && Number.isInteger(v)) return v.toFixed(1)
+  return s
+}
+
+function withUnit(parameter: Parameter, v: number): string {
+  const u = WORDS[parameter].unit
+  return u ? `${fmt(parameter, v)} ${u}` : fmt(parameter, v)
+}
+
+/** Classifies one value against one range (strict comparisons, act before watch). */
+export function classifyParameterValue(parameter: Parameter, value: number, range: ParameterRange): ParameterEvaluation {
+  const w = WORDS[parameter]
+  const head = `${w.label} ${withUnit(parameter, value)}`
+  const crossed = (status: ReadingStatus, limit: number, dir: 'low' | 'high'): ParameterEvaluation => {
+    const text = w[dir]?.[status === 'act' ? 1 : 0]
+      ?? `${dir === 'low' ? 'below' : 'above'} the range set for this feature${status === 'act' ? ' — act today' : ''}`
+    return { parameter, value, status, limit, reason: `${head} is ${dir === 'low' ? 'below' : 'above'} ${fmt(parameter, limit)}: ${text}` }
+  }
+  if (range.actBelow !== undefined && value < range.actBelow) return crossed('act', range.actBelow, 'low')
+  if (range.actAbove !== undefined && value > range.actAbove) return crossed('act', range.actAbove, 'high')
+  if (range.watchBelow !== undefined && value < range.watchBelow) return crossed('watch', range.watchBelow, 'low')
+  if (range.watchAbove !== undefined && value > range.watchAbove) return crossed('watch', range.watchAbove, 'high')
+  const lo = range.watchBelow ?? range.actBelow
+  const hi = range.watchAbove ?? range.actAbove
+  let reason: string
+  if (lo !== undefined && hi !== undefined) reason = `${head} is within ${fmt(parameter, lo)}–${fmt(parameter, hi)}`
+  else if (hi === 0 && value === 0) reason = `${w.label}: none detected`
+  else if (hi !== undefined) reason = `${head} is at or below ${fmt(parameter, hi)}`
+  else if (lo !== undefined) reason = `${head} is at or above ${fmt(parameter, lo)}`
+  else reason = `${head}: no limits set`
+  return { parameter, value, status: 'ok', limit: null, reason }
+}
+
+/**
+ * Evaluates one water test. Converts total ammonia to the N basis, computes un-ionized ammonia
+ * (when TAN, pH and temperature are present; nh3MgL limits are compared on the NH3 basis) and
+ * oxygen saturation (when DO and temperature are present), then rates every measured or computed
+ * parameter that has a range. Also applies the nitrite:chloride rule of SRAC 462 when salt is known.
+ */
+export function evaluateReading(reading: WaterReading, ranges: RangeTable, context?: { pressureKPa?: number }): ReadingEvaluation {
+  const m = validateWaterReading(reading)
+  const pressureKPa = context?.pressureKPa === undefined ? STANDARD_PRESSURE_KPA : checkPressureKPa(context.pressureKPa)
+  const tanN = totalAmmoniaAsN(reading)
+
+  const computed: ReadingEvaluation['computed'] = {
+    nh3MgL: null, nh3AsNMgL: null, nh3Fraction: null, doSaturationMgL: null, doSaturationPct: null,
+  }
+  if (tanN !== null && m.pH !== undefined && m.temperatureC !== undefined) {
+    computed.nh3Fraction = unionizedAmmoniaFraction(m.pH, m.temperatureC)
+    computed.nh3AsNMgL = tanN * computed.nh3Fraction
+    computed.nh3MgL = nitrogenToAmmonia(computed.nh3AsNMgL)
+  }
+  if (m.dissolvedOxygenMgL !== undefined && m.temperatureC !== undefined) {
+    computed.doSaturationMgL = oxygenSaturationMgL(m.temperatureC, pressureKPa)
+    computed.doSaturationPct = (100 * m.dissolvedOxygenMgL) / computed.doSaturationMgL
+  }
+
+  const values: Partial<Record<Parameter, number>> = {
+    temperatureC: m.temperatureC,
+    pH: m.pH,
+    totalAmmoniaMgL: tanN ?? undefined,
+    nh3MgL: computed.nh3MgL ?? undefined,
+    nitriteMgL: m.nitriteMgL,
+    nitrateMgL: m.nitrateMgL,
+    khMgL: m.khMgL,
+    ghMgL: m.ghMgL,
+    dissolvedOxygenMgL: m.dissolvedOxygenMgL,
+    doSaturationPct: computed.doSaturationPct ?? undefined,
+    saltGL: m.saltGL,
+    chlorineMgL: m.chlorineMgL,
+    phosphateMgL: m.phosphateMgL,
+  }
+
+  const parameters: ParameterEvaluation[] = []
+  for (const p of PARAMETERS) {
+    const v = values[p]
+    const r = ranges?.[p]
+    if (v === undefined) continue
+    if (r) parameters.push(classifyParameterValue(p, v, r))
+  }
+
+  // Nitrite:chloride (SRAC 462). Nitrite is taken as reported (mg/L NO2-); chloride comes from the salt reading.
+  const nitrite = m.nitriteMgL
+  if (nitrite !== undefined && nitrite > 0 && m.saltGL !== undefined) {
+    const chloride = saltGLToChlorideMgL(m.saltGL)
+    if (chloride < NITRITE_CHLORIDE_MIN_RATIO * nitrite) {
+      const note = `chloride ${fmt('nitriteMgL', chloride)} mg/L is below 10 × nitrite, so nitrite is more toxic to fish — add pond salt or change some water (SRAC 462)`
+      const i = parameters.findIndex(e => e.parameter === 'nitriteMgL')
+      const existing = i >= 0 ? parameters[i]! : undefined
+      if (existing && existing.status !== 'ok') {
+        parameters[i] = { ...existing, reason: `${existing.reason}; ${note}` }
+      } else {
+        const entry: ParameterEvaluation = {
+          parameter: 'nitriteMgL', value: nitrite, status: 'watch', limit: chloride / NITRITE_CHLORIDE_MIN_RATIO,
+          reason: `Nitrite ${withUnit('nitriteMgL', nitrite)} with ${note}`,
+        }
+        if (existing) parameters[i] = entry
+        else parameters.splice(parameters.filter(e => PARAMETERS.indexOf(e.parameter) < PARAMETERS.indexOf('nitriteMgL')).length, 0, entry)
+      }
+    }
+  }
+
+  return { computed, parameters, overall: worstReadingStatus(parameters.map(e => e.status)) }
+}

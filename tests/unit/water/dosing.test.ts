@@ -1,0 +1,330 @@
+import fc from 'fast-check'
+import { describe, expect, it } from 'vitest'
+import type { DosingSuggestion, WaterReading } from '../../../shared/types/water'
+import {
+  BICARBONATE_G_PER_1000L_PER_DKH, bicarbonateForKH, chloramineAmmoniaNMgL, CHLORIDE_MASS_FRACTION_NACL, dailyWaterLossMm,
+  dechlorinatorDose, DEFAULT_PROFILES, doseFromLabelRate, dosingSuggestions, EVAPORATION_ALLOWANCE_MM_PER_DAY, gramsToPounds,
+  kgToPounds, MAX_KH_RISE_DKH_PER_DAY, MAX_WATER_CHANGE_FRACTION, mgLCaCO3ToDkh, mmToTopUpLitres, NAHCO3_MG_PER_MG_CACO3,
+  saltGLToChlorideMgL, saltToTarget, thiosulfatePerChlorine, topUpLitresToMm, turnoverPerHour, TURNOVER_TARGET_PER_HOUR,
+  usGallonsToLitres, waterChangeFraction, waterChangesNeeded, waterfallFlowLph, WATERFALL_US_GPH_PER_INCH, WaterInputError,
+  waterLossStatus, inchesToMm, squareFeetToSquareMetres, litresToUsGallons, unionizedAmmonia,
+} from '../../../shared/utils/water-chemistry'
+
+const within = (value: number, expected: number, rel: number) => expect(Math.abs(value - expected) / expected).toBeLessThanOrEqual(rel)
+
+describe('KH buffer: sodium bicarbonate (C, CHECKS.md §4: stoichiometry, ±0.1 %)', () => {
+  it('NaHCO3 84.006 g/mol, 1 eq/mol; CaCO3 50.043 g/eq → 1.6787 mg per mg/L as CaCO3', () => {
+    within(NAHCO3_MG_PER_MG_CACO3, 1.6787, 0.001)
+    within(NAHCO3_MG_PER_MG_CACO3, 84.006 / 50.043, 0.0001)
+  })
+  it('1 dKH in 1000 L needs 29.96 g', () => {
+    within(BICARBONATE_G_PER_1000L_PER_DKH, 29.96, 0.001)
+    within(bicarbonateForKH(1000, 0, 1), 29.96, 0.001)
+    within(bicarbonateForKH(1000, 4, 5), 29.96, 0.001)
+  })
+  it('5000 L from 3 to 6 dKH → 449.4 g', () => {
+    within(bicarbonateForKH(5000, 3, 6), 5 * 3 * 29.96, 0.001)
+  })
+  it('returns 0 when no rise is needed', () => {
+    expect(bicarbonateForKH(1000, 6, 6)).toBe(0)
+    expect(bicarbonateForKH(1000, 7, 5)).toBe(0)
+  })
+})
+
+describe('salt (C, CHECKS.md §5)', () => {
+  it('0.1 % (1 g/L) in 1000 US gal = 8.345 lb', () => {
+    expect(kgToPounds(saltToTarget(usGallonsToLitres(1000), 0, 1))).toBeCloseTo(8.345, 3)
+  })
+  it('0.1 % = 1.000 kg per m³', () => {
+    expect(saltToTarget(1000, 0, 1)).toBeCloseTo(1.0, 12)
+  })
+  it('"1 lb per 100 gal = 0.1 %" is trade shorthand: it is really 0.12 % (1.198 g/L), not 0.1 %', () => {
+    const gPerL = 453.59237 / usGallonsToLitres(100)
+    expect(gPerL).toBeCloseTo(1.198, 3)
+    // our salt dose for 0.1 % in 100 gal is NOT 1 lb
+    const lbFor01Pct = kgToPounds(saltToTarget(usGallonsToLitres(100), 0, 1))
+    expect(lbFor01Pct).toBeCloseTo(0.8345, 4)
+    expect(Math.abs(lbFor01Pct - 1)).toBeGreaterThan(0.1)
+  })
+  it('NaCl is 60.66 % chloride by mass', () => {
+    expect(CHLORIDE_MASS_FRACTION_NACL * 100).toBeCloseTo(60.66, 2)
+    expect(saltGLToChlorideMgL(1)).toBeCloseTo(606.6, 0)
+  })
+  it('raises from current to target only', () => {
+    expect(saltToTarget(2000, 1, 3)).toBeCloseTo(4, 12)
+    expect(saltToTarget(2000, 3, 3)).toBe(0)
+    expect(saltToTarget(2000, 4, 3)).toBe(0)
+  })
+})
+
+describe('dechlorination with sodium thiosulfate (C, CHECKS.md §6, ±0.2 %)', () => {
+  it('to sulfate: 0.5575 mg Na2S2O3 (0.8751 mg pentahydrate) per mg Cl2', () => {
+    within(thiosulfatePerChlorine('sulfate'), 0.5575, 0.002)
+    within(thiosulfatePerChlorine('sulfate', true), 0.8751, 0.002)
+  })
+  it('to tetrathionate: 4.460 mg (7.001 mg pentahydrate) per mg Cl2', () => {
+    within(thiosulfatePerChlorine('tetrathionate'), 4.460, 0.002)
+    within(thiosulfatePerChlorine('tetrathionate', true), 7.001, 0.002)
+  })
+  it('1 mg/L monochloramine as Cl2 releases 0.1976 mg/L NH3-N when reduced', () => {
+    within(chloramineAmmoniaNMgL(1), 0.1976, 0.002)
+  })
+  it('dechlorinator dose is the label rate scaled to the top-up volume', () => {
+    expect(dechlorinatorDose(2000, { amount: 5, unit: 'mL', perLitres: 400 })).toEqual({ amount: 25, unit: 'mL' })
+    expect(dechlorinatorDose(0, { amount: 5, unit: 'mL', perLitres: 400 })).toEqual({ amount: 0, unit: 'mL' })
+    expect(doseFromLabelRate(10_000, { amount: 30, unit: 'g', perLitres: 1000 }).amount).toBeCloseTo(300, 12)
+  })
+})
+
+describe('water changes (C: dilution)', () => {
+  it('fraction = 1 − target/current', () => {
+    expect(waterChangeFraction(1, 0.25)).toBeCloseTo(0.75, 12)
+    expect(waterChangeFraction(0.5, 0.1)).toBeCloseTo(0.8, 12)
+    expect(waterChangeFraction(0.1, 0.5)).toBe(0)
+    expect(waterChangeFraction(0, 0)).toBe(0)
+    expect(waterChangeFraction(1, 0)).toBe(1)
+  })
+  it('changes of a third each: 1.0 → 0.25 takes 4 (⅔⁴ = 0.198), 1.0 → 0.3 takes 3 (⅔³ = 0.296)', () => {
+    expect(waterChangesNeeded(1, 0.25)).toBe(4)
+    expect(waterChangesNeeded(1, 0.3)).toBe(3)
+    expect(waterChangesNeeded(1, 1)).toBe(0)
+    expect(waterChangesNeeded(1, 0)).toBe(Infinity)
+  })
+  it('property: replacing the fraction with clean water reaches the target', () => {
+    fc.assert(fc.property(fc.double({ min: 0.001, max: 100, noNaN: true }), fc.double({ min: 0, max: 1, noNaN: true }), (c, k) => {
+      const t = c * k
+      const f = waterChangeFraction(c, t)
+      expect(f).toBeGreaterThanOrEqual(0)
+      expect(f).toBeLessThanOrEqual(1)
+      expect(c * (1 - f)).toBeCloseTo(t, 9)
+    }))
+  })
+})
+
+describe('turnover, top-ups and water loss', () => {
+  it('turnover = pump flow / volume', () => {
+    expect(turnoverPerHour(6000, 12_000)).toBeCloseTo(0.5, 12)
+    expect(turnoverPerHour(usGallonsToLitres(1000), usGallonsToLitres(1000))).toBeCloseTo(1, 12)
+  })
+  it('1 L over 1 m² = 1 mm; 1 in over 1 ft² = 0.6234 US gal (C)', () => {
+    expect(topUpLitresToMm(250, 10)).toBeCloseTo(25, 12)
+    expect(mmToTopUpLitres(25, 10)).toBeCloseTo(250, 12)
+    expect(litresToUsGallons(mmToTopUpLitres(inchesToMm(1), squareFeetToSquareMetres(1)))).toBeCloseTo(0.6234, 4)
+  })
+  it('daily loss from level readings, adding back top-ups made at a reading', () => {
+    const readings = [
+      { at: '2025-06-01T10:00:00Z', levelMm: 0, addedMm: 20 },
+      { at: '2025-06-08T10:00:00Z', levelMm: -5, addedMm: 30 },
+      { at: '2025-06-15T10:00:00Z', levelMm: -10 },
+    ]
+    // fell 10 mm net with 50 mm added in between: 60 mm over 14 days
+    expect(dailyWaterLossMm(readings)).toBeCloseTo(60 / 14, 12)
+    // order does not matter, Date objects work
+    expect(dailyWaterLossMm([...readings].reverse().map(r => ({ ...r, at: new Date(r.at) })))).toBeCloseTo(60 / 14, 12)
+  })
+  it('a rising level is a negative loss; too few readings or no elapsed time gives null', () => {
+    expect(dailyWaterLossMm([{ at: '2025-06-01T00:00:00Z', levelMm: 0 }, { at: '2025-06-03T00:00:00Z', levelMm: 10 }])).toBeCloseTo(-5, 12)
+    expect(dailyWaterLossMm([{ at: '2025-06-01T00:00:00Z', levelMm: 0 }])).toBeNull()
+    expect(dailyWaterLossMm([])).toBeNull()
+    expect(dailyWaterLossMm([{ at: '2025-06-01T00:00:00Z', levelMm: 0 }, { at: '2025-06-01T00:00:00Z', levelMm: 10 }])).toBeNull()
+  })
+  it('rejects a bad date or a negative top-up', () => {
+    expect(() => dailyWaterLossMm([{ at: 'yesterday-ish', levelMm: 0 }, { at: '2025-06-01', levelMm: 1 }])).toThrow(WaterInputError)
+    try {
+      dailyWaterLossMm([{ at: '2025-06-01', levelMm: 0, addedMm: -3 }, { at: '2025-06-02', levelMm: 1 }])
+      throw new Error('did not throw')
+    } catch (e) { expect((e as WaterInputError).field).toBe('levelReadings[0].addedMm') }
+  })
+})
+
+describe("the product's stated defaults — common practice, no source (CHECKS.md §8)", () => {
+  it('evaporation allowance is about 1 inch (25.4 mm) a week', () => {
+    expect(EVAPORATION_ALLOWANCE_MM_PER_DAY).toBeCloseTo(3.6286, 4)
+    expect(EVAPORATION_ALLOWANCE_MM_PER_DAY * 7).toBeCloseTo(25.4, 12)
+  })
+  it('water loss: watch above the allowance, act above twice it', () => {
+    expect(waterLossStatus(-2)).toBe('ok')
+    expect(waterLossStatus(3.6)).toBe('ok')
+    expect(waterLossStatus(3.7)).toBe('watch')
+    expect(waterLossStatus(7.2)).toBe('watch')
+    expect(waterLossStatus(7.3)).toBe('act')
+    expect(waterLossStatus(6, 2)).toBe('act')
+    expect(waterLossStatus(3, 2)).toBe('watch')
+  })
+  it('turnover targets: once an hour for fish ponds, about every two hours for water gardens', () => {
+    expect(TURNOVER_TARGET_PER_HOUR.koi_pond).toBe(1)
+    expect(TURNOVER_TARGET_PER_HOUR.water_garden).toBe(0.5)
+  })
+  it('waterfall flow about 100–150 US gal/h per inch of spillway', () => {
+    expect(WATERFALL_US_GPH_PER_INCH).toEqual({ low: 100, high: 150 })
+    const f = waterfallFlowLph(0.3048) // 12 in
+    expect(f.low).toBeCloseTo(usGallonsToLitres(1200), 6)
+    expect(f.high).toBeCloseTo(usGallonsToLitres(1800), 6)
+  })
+  it('split limits: a third of the water per change, about 1 dKH of KH rise per day', () => {
+    expect(MAX_WATER_CHANGE_FRACTION).toBeCloseTo(1 / 3, 12)
+    expect(MAX_KH_RISE_DKH_PER_DAY).toBe(1)
+  })
+})
+
+describe('dosing is linear in volume (fast-check)', () => {
+  const vol = fc.double({ min: 0, max: 1e6, noNaN: true })
+  const dkh = fc.double({ min: 0, max: 30, noNaN: true })
+  const ppt = fc.double({ min: 0, max: 35, noNaN: true })
+  const close = (a: number, b: number) => expect(Math.abs(a - b)).toBeLessThanOrEqual(1e-9 * Math.max(1, Math.abs(b)))
+
+  it('bicarbonate', () => {
+    fc.assert(fc.property(vol, dkh, dkh, (v, a, b) => {
+      const g = bicarbonateForKH(v, a, b)
+      expect(Number.isFinite(g)).toBe(true)
+      expect(g).toBeGreaterThanOrEqual(0)
+      close(bicarbonateForKH(2 * v, a, b), 2 * g)
+    }))
+  })
+  it('salt', () => {
+    fc.assert(fc.property(vol, ppt, ppt, (v, a, b) => {
+      const kg = saltToTarget(v, a, b)
+      expect(Number.isFinite(kg)).toBe(true)
+      close(saltToTarget(2 * v, a, b), 2 * kg)
+    }))
+  })
+  it('dechlorinator', () => {
+    fc.assert(fc.property(vol, fc.double({ min: 0, max: 100, noNaN: true }), fc.double({ min: 1, max: 10_000, noNaN: true }), (v, amount, per) => {
+      const rate = { amount, unit: 'mL', perLitres: per }
+      close(dechlorinatorDose(2 * v, rate).amount, 2 * dechlorinatorDose(v, rate).amount)
+    }))
+  })
+})
+
+describe('dosing input range (WaterInputError)', () => {
+  const field = (fn: () => unknown) => {
+    try { fn() } catch (e) { expect(e).toBeInstanceOf(WaterInputError); return (e as WaterInputError).field }
+    throw new Error('did not throw')
+  }
+  it('names the field', () => {
+    expect(field(() => bicarbonateForKH(-1, 1, 2))).toBe('volumeL')
+    expect(field(() => bicarbonateForKH(100, -1, 2))).toBe('fromDKH')
+    expect(field(() => saltToTarget(Number.NaN, 1, 2))).toBe('volumeL')
+    expect(field(() => saltToTarget(100, 1, -2))).toBe('targetPpt')
+    expect(field(() => dechlorinatorDose(-5, { amount: 1, unit: 'mL', perLitres: 100 }))).toBe('topUpLitres')
+    expect(field(() => dechlorinatorDose(5, { amount: 1, unit: 'mL', perLitres: 0 }))).toBe('labelRate.perLitres')
+    expect(field(() => turnoverPerHour(1000, 0))).toBe('volumeL')
+    expect(field(() => waterChangeFraction(-1, 0))).toBe('current')
+    expect(field(() => topUpLitresToMm(10, 0))).toBe('surfaceAreaM2')
+    expect(field(() => dosingSuggestions({ reading: {}, volumeL: -1, ranges: {} }))).toBe('volumeL')
+    expect(field(() => dosingSuggestions({ reading: { pH: 15 }, volumeL: 1000, ranges: {} }))).toBe('pH')
+  })
+})
+
+describe('dosingSuggestions', () => {
+  const koi = DEFAULT_PROFILES.koi_pond.ranges
+  const common = (s: DosingSuggestion) => {
+    expect(s.cautions).toContain('Read and follow the product label')
+    expect(s.cautions).toContain('Keep chemicals away from children and pets')
+  }
+
+  it('KH below target → sodium bicarbonate to the target, amount as bicarbonateForKH, split by 1 dKH a day', () => {
+    const reading: WaterReading = { khMgL: 60, pH: 7.4, temperatureC: 18 }
+    const out = dosingSuggestions({ reading, volumeL: 5000, ranges: koi })
+    expect(out.map(s => s.key)).toEqual(['kh_buffer'])
+    const s = out[0]!
+    expect(s.product).toBe('sodium bicarbonate (KH buffer)')
+    expect(s.unit).toBe('g')
+    const expected = bicarbonateForKH(5000, mgLCaCO3ToDkh(60), mgLCaCO3ToDkh(120))
+    expect(s.amount).toBeCloseTo(expected, 9)
+    expect(s.amount).toBeCloseTo(5 * (60 / 17.848) * 29.96, -1) // about 503 g
+    expect(s.inputs).toMatchObject({ volumeL: 5000, fromKhMgL: 60, toKhMgL: 120, days: 4 })
+    expect(s.inputs.fromDKH).toBeCloseTo(3.3617, 3)
+    expect(s.cautions.join(' ')).toMatch(/no more than about 1 dKH \(18 mg\/L\) a day/)
+    expect(s.cautions.join(' ')).toMatch(/4 daily doses/)
+    common(s)
+  })
+
+  it('KH at or above target → no KH suggestion', () => {
+    expect(dosingSuggestions({ reading: { khMgL: 130 }, volumeL: 5000, ranges: koi })).toEqual([])
+  })
+
+  it('KH uses watchBelow when the profile has no target', () => {
+    const out = dosingSuggestions({ reading: { khMgL: 30 }, volumeL: 1000, ranges: { khMgL: { watchBelow: 60, source: 'x', sourceKind: 'common practice' } } })
+    expect(out[0]!.amount).toBeCloseTo(bicarbonateForKH(1000, mgLCaCO3ToDkh(30), mgLCaCO3ToDkh(60)), 9)
+  })
+
+  it('total ammonia over its limit → partial water change to the TAN target', () => {
+    const reading: WaterReading = { totalAmmoniaMgL: 1.0, pH: 7.5, temperatureC: 20 }
+    const out = dosingSuggestions({ reading, volumeL: 8000, ranges: koi })
+    const s = out.find(x => x.key === 'water_change_ammonia')!
+    expect(s).toBeDefined()
+    expect(s.fraction).toBeCloseTo(0.9, 9) // 1 − 0.1/1.0 (koi target 0.1 mg/L as N)
+    expect(s.amount).toBeCloseTo(7200, 6)
+    expect(s.unit).toBe('L')
+    expect(s.cautions.join(' ')).toMatch(/[Dd]echlorinate the new water and match its temperature/)
+    expect(s.cautions.join(' ')).toMatch(/no more than about a third.*about 6 changes of up to 2670 L/)
+    common(s)
+  })
+
+  it('ammonia reported as NH3 gives the same water change as the same water reported as N', () => {
+    const asN = dosingSuggestions({ reading: { totalAmmoniaMgL: 0.8, pH: 7.2, temperatureC: 15 }, volumeL: 3000, ranges: koi })
+    const asNH3 = dosingSuggestions({ reading: { totalAmmoniaMgL: 0.8 * 17.031 / 14.007, ammoniaBasis: 'NH3', pH: 7.2, temperatureC: 15 }, volumeL: 3000, ranges: koi })
+    expect(asNH3[0]!.amount).toBeCloseTo(asN[0]!.amount!, 6)
+  })
+
+  it('NH3 over its limit at high pH, even with TAN under its own limit, aims low enough for NH3', () => {
+    const reading: WaterReading = { totalAmmoniaMgL: 0.2, pH: 8.8, temperatureC: 28 }
+    const nh3 = unionizedAmmonia(0.2, 8.8, 28) * 17.031 / 14.007
+    expect(nh3).toBeGreaterThan(0.05)
+    const s = dosingSuggestions({ reading, volumeL: 1000, ranges: koi }).find(x => x.key === 'water_change_ammonia')!
+    const target = s.inputs.targetTanMgLasN as number
+    expect(target).toBeLessThan(0.1)
+    // at the target, NH3 is half the 0.02 mg/L watch limit
+    expect(unionizedAmmonia(target, 8.8, 28) * 17.031 / 14.007).toBeCloseTo(0.01, 9)
+    expect(s.fraction).toBeCloseTo(1 - target / 0.2, 9)
+  })
+
+  it('nitrite over limit with fish and no salt → water change and pond salt to chloride ≥ 10 × nitrite (SRAC 462)', () => {
+    const reading: WaterReading = { nitriteMgL: 0.5, saltGL: 0 }
+    const out = dosingSuggestions({ reading, volumeL: 10_000, ranges: koi, fish: true })
+    expect(out.map(s => s.key)).toEqual(['water_change_nitrite', 'salt_for_nitrite'])
+    const wc = out[0]!
+    expect(wc.fraction).toBeCloseTo(1 - 0.05 / 0.5, 9) // target = watchAbove/2
+    const salt = out[1]!
+    expect(salt.product).toBe('pond salt (sodium chloride)')
+    expect(salt.unit).toBe('kg')
+    // 5 mg/L chloride needs 5 / 0.6066 = 8.243 mg/L NaCl; × 10 000 L = 82.4 g
+    expect(salt.amount).toBeCloseTo((5 / 0.60661) * 10_000 / 1e6, 4)
+    expect(salt.inputs.targetChlorideMgL).toBeCloseTo(5, 12)
+    expect(salt.cautions.join(' ')).toMatch(/harms many plants and some fish/)
+    common(salt)
+  })
+
+  it('no salt without fish, or when salt is not measured, or when chloride is already enough', () => {
+    expect(dosingSuggestions({ reading: { nitriteMgL: 0.5, saltGL: 0 }, volumeL: 1000, ranges: koi }).map(s => s.key)).toEqual(['water_change_nitrite'])
+    expect(dosingSuggestions({ reading: { nitriteMgL: 0.5 }, volumeL: 1000, ranges: koi, fish: true }).map(s => s.key)).toEqual(['water_change_nitrite'])
+    expect(dosingSuggestions({ reading: { nitriteMgL: 0.5, saltGL: 1 }, volumeL: 1000, ranges: koi, fish: true }).map(s => s.key)).toEqual(['water_change_nitrite'])
+  })
+
+  it('top-up with a label rate → dechlorinator dose for the top-up volume', () => {
+    const rate = { amount: 5, unit: 'mL', perLitres: 400 }
+    const out = dosingSuggestions({ reading: {}, volumeL: 10_000, ranges: koi, topUpLitres: 1200, dechlorinatorRate: rate })
+    expect(out).toHaveLength(1)
+    const s = out[0]!
+    expect(s.key).toBe('dechlorinator')
+    expect(s.amount).toBeCloseTo(15, 12)
+    expect(s.unit).toBe('mL')
+    expect(s.inputs).toMatchObject({ topUpLitres: 1200, labelAmount: 5, labelUnit: 'mL', labelPerLitres: 400 })
+    expect(s.cautions.join(' ')).toMatch(/chloraminated.*retest ammonia/)
+    common(s)
+  })
+
+  it('top-up without a label rate → amount null and a reason asking for the rate', () => {
+    const out = dosingSuggestions({ reading: {}, volumeL: 10_000, ranges: koi, topUpLitres: 1200, dechlorinatorRate: null })
+    expect(out).toHaveLength(1)
+    expect(out[0]!.amount).toBeNull()
+    expect(out[0]!.reason).toMatch(/label rate/)
+    expect(out[0]!.cautions.join(' ')).toMatch(/retest ammonia/)
+    common(out[0]!)
+  })
+
+  it('nothing to suggest for good water and no top-up', () => {
+    expect(dosingSuggestions({ reading: { pH: 7.6, khMgL: 140, totalAmmoniaMgL: 0, nitriteMgL: 0, temperatureC: 20 }, volumeL: 5000, ranges: koi, fish: true })).toEqual([])
+  })
+})
