@@ -1,4 +1,4 @@
-import { char, integer, pgEnum, pgTable, text } from 'drizzle-orm/pg-core'
+import { char, doublePrecision, integer, pgEnum, pgTable, smallint, text } from 'drizzle-orm/pg-core'
 import { id, timestamps } from './columns'
 
 export const unitSystem = pgEnum('unit_system', ['us', 'metric'])
@@ -14,5 +14,12 @@ export const companies = pgTable('companies', {
   unitSystem: unitSystem('unit_system').notNull().default('us'),
   /** IANA time zone name, e.g. America/Chicago. */
   timeZone: text('time_zone').notNull().default('UTC'),
+  /** ISO weekdays the company works (1 = Monday … 7 = Sunday). */
+  workingDays: smallint('working_days').array().notNull().default([1, 2, 3, 4, 5]),
+  /** Local time the working day starts, HH:MM; generated visits start then. */
+  dayStartsAt: text('day_starts_at').notNull().default('08:00'),
+  /** The yard routes start from when a technician has no home base of their own. */
+  baseLatitude: doublePrecision('base_latitude'),
+  baseLongitude: doublePrecision('base_longitude'),
   ...timestamps,
 })

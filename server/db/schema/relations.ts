@@ -3,6 +3,9 @@ import { companies } from './companies'
 import { customerContacts, customers } from './customers'
 import { rangeProfiles, waterFeatures } from './features'
 import { sites } from './sites'
+import { contractFeatures, contracts } from './contracts'
+import { planVisitTemplates, plans } from './plans'
+import { visits } from './visits'
 import { sessions, users } from './users'
 
 export const companiesRelations = relations(companies, ({ many }) => ({
@@ -41,4 +44,32 @@ export const waterFeaturesRelations = relations(waterFeatures, ({ one }) => ({
 
 export const sessionsRelations = relations(sessions, ({ one }) => ({
   user: one(users, { fields: [sessions.userId], references: [users.id] }),
+}))
+
+export const plansRelations = relations(plans, ({ many }) => ({
+  templates: many(planVisitTemplates),
+  contracts: many(contracts),
+}))
+
+export const planVisitTemplatesRelations = relations(planVisitTemplates, ({ one }) => ({
+  plan: one(plans, { fields: [planVisitTemplates.planId], references: [plans.id] }),
+}))
+
+export const contractsRelations = relations(contracts, ({ one, many }) => ({
+  customer: one(customers, { fields: [contracts.customerId], references: [customers.id] }),
+  plan: one(plans, { fields: [contracts.planId], references: [plans.id] }),
+  features: many(contractFeatures),
+  visits: many(visits),
+}))
+
+export const contractFeaturesRelations = relations(contractFeatures, ({ one }) => ({
+  contract: one(contracts, { fields: [contractFeatures.contractId], references: [contracts.id] }),
+  feature: one(waterFeatures, { fields: [contractFeatures.featureId], references: [waterFeatures.id] }),
+}))
+
+export const visitsRelations = relations(visits, ({ one }) => ({
+  contract: one(contracts, { fields: [visits.contractId], references: [contracts.id] }),
+  site: one(sites, { fields: [visits.siteId], references: [sites.id] }),
+  customer: one(customers, { fields: [visits.customerId], references: [customers.id] }),
+  technician: one(users, { fields: [visits.technicianId], references: [users.id] }),
 }))
