@@ -9,6 +9,7 @@ import { closeDb, useDb } from '../server/utils/db'
 import { hashPassword } from '../server/utils/password'
 import { DEMO_PASSWORD, demoCompany, demoCustomers, demoStaff } from './seed/demo-data'
 import { demoSitesAndFeatures } from './seed/demo-features'
+import { seedSchedule } from './seed/demo-schedule'
 
 /** A stable UUID (version-5 layout) for a demo key. */
 export function demoId(key: string) {
@@ -60,6 +61,8 @@ export async function seedDemo() {
         computedVolumeL: featureVolumeLitres(f.shape), surfaceAreaM2: featureSurfaceAreaM2(f.shape), measuredVolumeL: f.measuredVolumeL ?? null,
       }).onConflictDoNothing().returning({ id: waterFeatures.id })).length
     }
+    const featureRefs = features.map(f => ({ id: demoId(f.key), kind: f.kind, customerKey: demoSites.find(s => s.key === f.siteKey)!.customerKey }))
+    added += await seedSchedule(tx, companyId, demoId, featureRefs, demoCustomers.map(c => c.key))
   })
   return added
 }

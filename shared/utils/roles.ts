@@ -17,6 +17,13 @@ export const PERMISSIONS = {
   'records.edit': ['owner', 'technician'],
   'profiles.manage': ['owner'],
   'water.evaluate': ['owner', 'technician', 'customer'],
+  'plans.manage': ['owner'],
+  'contracts.manage': ['owner'],
+  /** Contracts and visits: customers read only their own (enforced in the services). */
+  'contracts.read': ['owner', 'technician', 'customer'],
+  'schedule.manage': ['owner'],
+  'schedule.read': ['owner', 'technician'],
+  'calendar.own': ['owner', 'technician', 'customer'],
 } as const satisfies Record<string, readonly Role[]>
 
 export type Permission = keyof typeof PERMISSIONS

@@ -4,7 +4,7 @@ import { describe, expect, it } from 'vitest'
 import { listApiRoutes } from '../helpers/routes'
 
 // The only routes that may run without the guard. Everything else calls requireUser() first.
-const PUBLIC = new Set(['POST /api/auth/login', 'GET /api/health'])
+const PUBLIC = new Set(['POST /api/auth/login', 'GET /api/health', 'GET /api/calendar/:token'])
 
 describe('every API route is guarded', () => {
   const routes = listApiRoutes()

@@ -1,4 +1,4 @@
-import { boolean, char, date, index, integer, pgEnum, pgTable, primaryKey, text, timestamp, uuid, type AnyPgColumn } from 'drizzle-orm/pg-core'
+import { boolean, char, date, index, integer, pgEnum, pgTable, primaryKey, text, timestamp, uniqueIndex, uuid, type AnyPgColumn } from 'drizzle-orm/pg-core'
 import { CONTRACT_STATUSES } from '../../../shared/types/schedule'
 import { id, timestamps } from './columns'
 import { companies } from './companies'
@@ -32,6 +32,8 @@ export const contracts = pgTable('contracts', {
   index('contracts_company_status_idx').on(t.companyId, t.status),
   index('contracts_customer_idx').on(t.customerId),
   index('contracts_term_end_idx').on(t.companyId, t.termEnd),
+  // A term is renewed once.
+  uniqueIndex('contracts_previous_key').on(t.previousContractId),
 ])
 
 export const contractFeatures = pgTable('contract_features', {

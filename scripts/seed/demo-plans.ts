@@ -1,0 +1,61 @@
+// The demo company's own plans (invented names and prices). Prices are minor units (cents) billed
+// per cadence period: per year, per month or per visit.
+import type { BillingCadence, VisitType } from '../../shared/types/schedule'
+
+interface DemoTemplate { visitType: VisitType, rrule: string, durationMinutes: number, checklist: string[] }
+export interface DemoPlan { key: string, name: string, description: string, priceMinor: number, billingCadence: BillingCadence, termMonths: number, templates: DemoTemplate[] }
+
+const CHECK = {
+  spring: ['Pumps pulled, cleaned and restarted', 'Debris and sludge removed', 'Skimmer and filter media rinsed in pond water', 'Plants divided and trimmed', 'UV bulb and quartz sleeve checked', 'Water tested', 'Beneficial bacteria dosed', 'GFCI/RCD outlets tested'],
+  routine: ['Skimmer net and basket emptied', 'Filter pads rinsed', 'Plants trimmed', 'Pump flow and lights checked', 'Water level topped up (dechlorinated)', 'Water tested', 'Fish observed'],
+  netInstall: ['Leaf net fitted and staked', 'Net clear of the water surface', 'Skimmer emptied'],
+  netCleanout: ['Leaves cleared from the net', 'Skimmer emptied', 'Water level checked'],
+  shutdown: ['Net removed and stored', 'Pumps pulled or set for winter', 'Plumbing drained where it would freeze', 'De-icer or aerator in place and tested on GFCI/RCD', 'UV clarifier off and drained', 'Water tested'],
+  waterTest: ['Water tested', 'De-icer or aerator running', 'Fish observed'],
+}
+
+export const demoPlans: DemoPlan[] = [
+  {
+    key: 'plan-seasonal', name: 'Seasonal Care', priceMinor: 145_000, billingCadence: 'yearly', termMonths: 12,
+    description: 'Spring clean-out, a visit every two weeks from May to September, leaf net on in October with weekly clean-outs, and the fall shutdown.',
+    templates: [
+      { visitType: 'spring_cleanout', rrule: 'FREQ=YEARLY;BYMONTH=4;BYDAY=MO;BYSETPOS=2', durationMinutes: 240, checklist: CHECK.spring },
+      { visitType: 'routine', rrule: 'FREQ=WEEKLY;INTERVAL=2;BYMONTH=5,6,7,8,9;BYDAY=TU', durationMinutes: 60, checklist: CHECK.routine },
+      { visitType: 'net_install', rrule: 'FREQ=YEARLY;BYMONTH=10;BYDAY=MO;BYSETPOS=1', durationMinutes: 90, checklist: CHECK.netInstall },
+      { visitType: 'net_cleanout', rrule: 'FREQ=WEEKLY;BYMONTH=10,11;BYDAY=TH', durationMinutes: 45, checklist: CHECK.netCleanout },
+      { visitType: 'fall_shutdown', rrule: 'FREQ=YEARLY;BYMONTH=11;BYDAY=MO;BYSETPOS=3', durationMinutes: 120, checklist: CHECK.shutdown },
+    ],
+  },
+  {
+    key: 'plan-koi-year', name: 'Koi Keeper, all year', priceMinor: 18_900, billingCadence: 'monthly', termMonths: 12,
+    description: 'For fish ponds: weekly summer visits, leaf-net season, and a monthly winter water test with the de-icer checked.',
+    templates: [
+      { visitType: 'spring_cleanout', rrule: 'FREQ=YEARLY;BYMONTH=4;BYDAY=WE;BYSETPOS=1', durationMinutes: 300, checklist: CHECK.spring },
+      { visitType: 'routine', rrule: 'FREQ=WEEKLY;BYMONTH=5,6,7,8,9;BYDAY=WE', durationMinutes: 60, checklist: CHECK.routine },
+      { visitType: 'net_install', rrule: 'FREQ=YEARLY;BYMONTH=10;BYDAY=TU;BYSETPOS=1', durationMinutes: 90, checklist: CHECK.netInstall },
+      { visitType: 'net_cleanout', rrule: 'FREQ=WEEKLY;BYMONTH=10,11;BYDAY=FR', durationMinutes: 45, checklist: CHECK.netCleanout },
+      { visitType: 'fall_shutdown', rrule: 'FREQ=YEARLY;BYMONTH=11;BYDAY=TU;BYSETPOS=3', durationMinutes: 150, checklist: CHECK.shutdown },
+      { visitType: 'water_test', rrule: 'FREQ=MONTHLY;BYMONTH=12,1,2,3;BYDAY=1TU', durationMinutes: 30, checklist: CHECK.waterTest },
+    ],
+  },
+  {
+    key: 'plan-spring-fall', name: 'Spring & Fall Essentials', priceMinor: 32_500, billingCadence: 'per_visit', termMonths: 12,
+    description: 'Just the two big days: the spring clean-out and the fall shutdown, billed per visit.',
+    templates: [
+      { visitType: 'spring_cleanout', rrule: 'FREQ=YEARLY;BYMONTH=4;BYDAY=TH;BYSETPOS=3', durationMinutes: 240, checklist: CHECK.spring },
+      { visitType: 'fall_shutdown', rrule: 'FREQ=YEARLY;BYMONTH=11;BYDAY=TH;BYSETPOS=1', durationMinutes: 120, checklist: CHECK.shutdown },
+    ],
+  },
+  {
+    key: 'plan-pondless', name: 'Pondless Tune-Up', priceMinor: 39_500, billingCadence: 'yearly', termMonths: 12,
+    description: 'For pondless waterfalls and fountains: spring start-up, a monthly summer check of pump vault and dosing, and winter shutdown.',
+    templates: [
+      { visitType: 'spring_cleanout', rrule: 'FREQ=YEARLY;BYMONTH=4;BYDAY=FR;BYSETPOS=4', durationMinutes: 120, checklist: CHECK.spring },
+      { visitType: 'routine', rrule: 'FREQ=MONTHLY;BYMONTH=5,6,7,8,9;BYDAY=1FR', durationMinutes: 45, checklist: CHECK.routine },
+      { visitType: 'fall_shutdown', rrule: 'FREQ=YEARLY;BYMONTH=10;BYDAY=FR;BYSETPOS=-1', durationMinutes: 90, checklist: CHECK.shutdown },
+    ],
+  },
+]
+
+/** Closed days (invented company holidays), as month-day; the seed applies them to each season's years. */
+export const demoClosedMonthDays = [['01-01', 'New Year'], ['07-03', 'Summer closure'], ['11-26', 'Company holiday'], ['12-24', 'Winter closure'], ['12-25', 'Winter closure']] as const

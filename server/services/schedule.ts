@@ -1,0 +1,138 @@
+import { and, asc, count, eq, gte, inArray, isNull, lte, ne, sql, type SQL } from 'drizzle-orm'
+import type { VisitUpdateInput } from '../../shared/schemas/visits'
+import type { VisitType } from '../../shared/types/schedule'
+import { localTimeToInstant, localToday } from '../../shared/utils/recurrence'
+import { companies, contractFeatures, customers, sites, staffProfiles, users, visits, waterFeatures } from '../db/schema'
+import type { SessionUser } from '../utils/auth'
+import { useDb } from '../utils/db'
+import { httpError } from '../utils/errors'
+import { recordAudit } from './audit'
+
+const DEFAULT_CAPACITY_MINUTES = 420
+
+/** Staff who can be given visits, with their capacity and home base. */
+export async function listTechnicians(actor: SessionUser) {
+  return useDb().select({
+    id: users.id, name: users.name, role: users.role,
+    capacityMinutes: sql<number>`coalesce(${staffProfiles.capacityMinutes}, ${DEFAULT_CAPACITY_MINUTES})`,
+    homeLatitude: staffProfiles.homeLatitude, homeLongitude: staffProfiles.homeLongitude,
+  }).from(users).leftJoin(staffProfiles, eq(staffProfiles.userId, users.id))
+    .where(and(eq(users.companyId, actor.companyId), eq(users.role, 'technician'), eq(users.active, true)))
+    .orderBy(asc(users.name)).limit(100)
+}
+
+export async function updateStaffProfile(actor: SessionUser, userId: string, input: { capacityMinutes?: number, homeLatitude?: number | null, homeLongitude?: number | null }, ip: string) {
+  const db = useDb()
+  const [u] = await db.select({ id: users.id }).from(users).where(and(eq(users.id, userId), eq(users.companyId, actor.companyId), ne(users.role, 'customer'))).limit(1)
+  if (!u) throw httpError(404, 'No such staff member')
+  await db.transaction(async (tx) => {
+    await tx.insert(staffProfiles).values({ userId, ...input }).onConflictDoUpdate({ target: staffProfiles.userId, set: input })
+    await recordAudit(tx, { action: 'staff.profile_changed', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'user', subjectId: userId, ip, detail: input })
+  })
+  return (await listTechnicians(actor)).find(t => t.id === userId) ?? { id: userId, ...input }
+}
+
+const visitColumns = {
+  id: visits.id, status: visits.status, visitType: visits.visitType, scheduledOn: visits.scheduledOn, startsAt: visits.startsAt,
+  durationMinutes: visits.durationMinutes, technicianId: visits.technicianId, technicianName: users.name,
+  movedManually: visits.movedManually, moveReason: visits.moveReason, statusReason: visits.statusReason,
+  contractId: visits.contractId, customerId: visits.customerId, customerName: customers.name,
+  siteId: visits.siteId, siteName: sites.name, siteLine1: sites.line1, siteCity: sites.city,
+}
+
+/** Visits between two dates for the week and month boards, with each technician's load per day. */
+export async function board(actor: SessionUser, q: { from: string, to: string, technicianId?: string, visitType?: VisitType, includeCancelled: boolean }) {
+  const db = useDb()
+  const where: SQL[] = [eq(visits.companyId, actor.companyId), gte(visits.scheduledOn, q.from), lte(visits.scheduledOn, q.to)]
+  if (!q.includeCancelled) where.push(ne(visits.status, 'cancelled'))
+  if (q.technicianId === 'unassigned') where.push(isNull(visits.technicianId))
+  else if (q.technicianId) where.push(eq(visits.technicianId, q.technicianId))
+  if (q.visitType) where.push(eq(visits.visitType, q.visitType))
+  const [rows, technicians] = await Promise.all([
+    db.select(visitColumns).from(visits)
+      .innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
+      .leftJoin(users, eq(users.id, visits.technicianId))
+      .where(and(...where)).orderBy(asc(visits.scheduledOn), asc(customers.name)).limit(2000),
+    listTechnicians(actor),
+  ])
+  const capacity = new Map(technicians.map(t => [t.id, t.capacityMinutes]))
+  const load: Record<string, Record<string, { minutes: number, capacity: number, over: boolean }>> = {}
+  for (const v of rows) {
+    if (!v.technicianId || v.status === 'cancelled') continue
+    const day = (load[v.scheduledOn] ??= {})
+    const entry = (day[v.technicianId] ??= { minutes: 0, capacity: capacity.get(v.technicianId) ?? DEFAULT_CAPACITY_MINUTES, over: false })
+    entry.minutes += v.durationMinutes
+    entry.over = entry.minutes > entry.capacity
+  }
+  return { from: q.from, to: q.to, visits: rows, technicians, load, unassigned: rows.filter(v => !v.technicianId && v.status === 'scheduled').length }
+}
+
+export async function getVisit(actor: SessionUser, id: string) {
+  const db = useDb()
+  const [v] = await db.select({ ...visitColumns, checklist: visits.checklist, startedAt: visits.startedAt, finishedAt: visits.finishedAt })
+    .from(visits).innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
+    .leftJoin(users, eq(users.id, visits.technicianId))
+    .where(and(eq(visits.id, id), eq(visits.companyId, actor.companyId), actor.role === 'customer' ? eq(visits.customerId, actor.customerId ?? '') : undefined)).limit(1)
+  if (!v) throw httpError(404, 'No such visit')
+  return v
+}
+
+/** Assigns a technician or moves a visit (with a reason); a moved visit is left alone by regeneration. */
+export async function updateVisit(actor: SessionUser, id: string, input: VisitUpdateInput, ip: string) {
+  const before = await getVisit(actor, id)
+  if (['done', 'cancelled'].includes(before.status)) throw httpError(409, `This visit is ${before.status} and cannot change`)
+  const db = useDb()
+  if (input.technicianId) {
+    const [tech] = await db.select({ id: users.id }).from(users)
+      .where(and(eq(users.id, input.technicianId), eq(users.companyId, actor.companyId), inArray(users.role, ['technician', 'owner']), eq(users.active, true))).limit(1)
+    if (!tech) throw httpError(400, 'Invalid body: technicianId — no such active technician', { fields: { technicianId: 'No such active technician' } })
+  }
+  await db.transaction(async (tx) => {
+    const set: Partial<typeof visits.$inferInsert> = {}
+    if (input.technicianId !== undefined) set.technicianId = input.technicianId
+    if (input.durationMinutes !== undefined) set.durationMinutes = input.durationMinutes
+    if (input.scheduledOn && input.scheduledOn !== before.scheduledOn) {
+      const [company] = await tx.select({ tz: companies.timeZone, start: companies.dayStartsAt }).from(companies).where(eq(companies.id, actor.companyId)).limit(1)
+      Object.assign(set, { scheduledOn: input.scheduledOn, startsAt: localTimeToInstant(input.scheduledOn, company!.start, company!.tz), movedManually: true, moveReason: input.moveReason ?? '', routePosition: null })
+    }
+    await tx.update(visits).set({ ...set, sequence: sql`${visits.sequence} + 1` }).where(eq(visits.id, id))
+    await recordAudit(tx, {
+      action: set.scheduledOn ? 'visit.moved' : 'visit.assigned', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'visit', subjectId: id, ip,
+      detail: { ...input, fromDate: before.scheduledOn, fromTechnician: before.technicianId },
+    })
+  })
+  return getVisit(actor, id)
+}
+
+/** Names of the water features a visit covers (its contract's features at its site). */
+export async function featuresForVisits(visitRows: Array<{ id: string, contractId: string | null, siteId: string }>) {
+  const contractIds = [...new Set(visitRows.flatMap(v => (v.contractId ? [v.contractId] : [])))]
+  if (!contractIds.length) return new Map<string, string[]>()
+  const rows = await useDb().select({ contractId: contractFeatures.contractId, siteId: waterFeatures.siteId, name: waterFeatures.name })
+    .from(contractFeatures).innerJoin(waterFeatures, eq(waterFeatures.id, contractFeatures.featureId))
+    .where(inArray(contractFeatures.contractId, contractIds))
+  return new Map(visitRows.map(v => [v.id, rows.filter(r => r.contractId === v.contractId && r.siteId === v.siteId).map(r => r.name)]))
+}
+
+/** Paged visits, newest last; for a customer only their own. `upcoming` leaves out past and cancelled ones. */
+export async function listVisits(actor: SessionUser, q: { page: number, pageSize: number, customerId?: string, contractId?: string, from?: string, upcoming: boolean }) {
+  const db = useDb()
+  const where: SQL[] = [eq(visits.companyId, actor.companyId)]
+  if (actor.role === 'customer') where.push(eq(visits.customerId, actor.customerId ?? '00000000-0000-0000-0000-000000000000'))
+  else if (q.customerId) where.push(eq(visits.customerId, q.customerId))
+  if (q.contractId) where.push(eq(visits.contractId, q.contractId))
+  if (q.upcoming) {
+    const [company] = await db.select({ tz: companies.timeZone }).from(companies).where(eq(companies.id, actor.companyId)).limit(1)
+    where.push(gte(visits.scheduledOn, q.from ?? localToday(company!.tz)), inArray(visits.status, ['scheduled', 'in_progress']))
+  }
+  else if (q.from) where.push(gte(visits.scheduledOn, q.from))
+  const cond = and(...where)
+  const [rows, [total]] = await Promise.all([
+    db.select(visitColumns).from(visits)
+      .innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
+      .leftJoin(users, eq(users.id, visits.technicianId))
+      .where(cond).orderBy(asc(visits.scheduledOn), asc(visits.id)).limit(q.pageSize).offset((q.page - 1) * q.pageSize),
+    db.select({ n: count() }).from(visits).where(cond),
+  ])
+  return { rows, total: total?.n ?? 0, page: q.page, pageSize: q.pageSize }
+}

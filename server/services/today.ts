@@ -1,0 +1,87 @@
+import { and, asc, eq, inArray, ne } from 'drizzle-orm'
+import { localToday } from '../../shared/utils/recurrence'
+import { orderStops, routeLegs } from '../../shared/utils/route-order'
+import { companies, customers, sites, staffProfiles, users, visits } from '../db/schema'
+import type { SessionUser } from '../utils/auth'
+import { useDb } from '../utils/db'
+import { httpError } from '../utils/errors'
+import { recordAudit } from './audit'
+import { featuresForVisits } from './schedule'
+
+/**
+ * A technician's day: their visits in driving order from their home base (or the company's
+ * yard), with the leg before each stop, and the expected end time. A hand-made order (route
+ * positions) wins over the computed one.
+ */
+export async function technicianDay(actor: SessionUser, q: { date?: string, technicianId?: string }) {
+  const db = useDb()
+  const technicianId = actor.role === 'owner' && q.technicianId ? q.technicianId : actor.id
+  const [company] = await db.select().from(companies).where(eq(companies.id, actor.companyId)).limit(1)
+  const date = q.date ?? localToday(company!.timeZone)
+  const [tech] = await db.select({ id: users.id, name: users.name, homeLatitude: staffProfiles.homeLatitude, homeLongitude: staffProfiles.homeLongitude })
+    .from(users).leftJoin(staffProfiles, eq(staffProfiles.userId, users.id))
+    .where(and(eq(users.id, technicianId), eq(users.companyId, actor.companyId))).limit(1)
+  if (!tech) throw httpError(404, 'No such technician')
+
+  const rows = await db.select({
+    id: visits.id, status: visits.status, visitType: visits.visitType, durationMinutes: visits.durationMinutes, startsAt: visits.startsAt,
+    routePosition: visits.routePosition, contractId: visits.contractId, checklist: visits.checklist,
+    customerId: customers.id, customerName: customers.name,
+    siteId: sites.id, siteName: sites.name, line1: sites.line1, city: sites.city, lat: sites.latitude, lon: sites.longitude,
+    accessNotes: sites.accessNotes, gateCode: sites.gateCode, hazards: sites.hazards, hazardNotes: sites.hazardNotes,
+  }).from(visits).innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
+    .where(and(eq(visits.companyId, actor.companyId), eq(visits.technicianId, technicianId), eq(visits.scheduledOn, date), ne(visits.status, 'cancelled')))
+    .orderBy(asc(visits.startsAt)).limit(60)
+
+  const home = tech.homeLatitude != null && tech.homeLongitude != null
+    ? { lat: tech.homeLatitude, lon: tech.homeLongitude }
+    : company!.baseLatitude != null && company!.baseLongitude != null ? { lat: company!.baseLatitude, lon: company!.baseLongitude } : null
+  const located = rows.filter(r => r.lat != null && r.lon != null)
+  const handOrdered = rows.some(r => r.routePosition != null)
+  let order: string[]
+  if (handOrdered) order = [...rows].sort((a, b) => (a.routePosition ?? 999) - (b.routePosition ?? 999)).map(r => r.id)
+  else if (home && located.length) order = [...orderStops(home, located.map(r => ({ id: r.id, lat: r.lat!, lon: r.lon! }))), ...rows.filter(r => r.lat == null || r.lon == null).map(r => r.id)]
+  else order = rows.map(r => r.id)
+
+  const byId = new Map(rows.map(r => [r.id, r]))
+  const ordered = order.map(id => byId.get(id)!)
+  const orderedLocated = ordered.filter(r => r.lat != null && r.lon != null).map(r => ({ id: r.id, lat: r.lat!, lon: r.lon! }))
+  const legs = home && orderedLocated.length ? routeLegs(home, orderedLocated) : { legs: [], totalKm: 0, totalMinutes: 0 }
+  const legById = new Map(legs.legs.map(l => [l.toId, l]))
+  const features = await featuresForVisits(rows)
+
+  // Expected times: start of the working day, then each leg's drive and each visit's duration.
+  let clock = rows[0]?.startsAt ? new Date(rows[0].startsAt) : null
+  const stops = ordered.map((r, i) => {
+    const leg = legById.get(r.id) ?? null
+    const arrive = clock ? new Date(clock.getTime() + (leg?.minutes ?? 0) * 60_000) : null
+    const leave = arrive ? new Date(arrive.getTime() + r.durationMinutes * 60_000) : null
+    clock = leave
+    const { checklist, lat, lon, ...rest } = r
+    return { ...rest, position: i + 1, latitude: lat, longitude: lon, checklistItems: checklist.length, features: features.get(r.id) ?? [], leg, expectedArrival: arrive, expectedDeparture: leave }
+  })
+  const workMinutes = rows.reduce((s, r) => s + r.durationMinutes, 0)
+  return {
+    date, timeZone: company!.timeZone, technician: { id: tech.id, name: tech.name }, home,
+    handOrdered, stops, totalKm: legs.totalKm, driveMinutes: legs.totalMinutes, workMinutes,
+    expectedEnd: clock,
+  }
+}
+
+/** A technician's own order for a day; an empty list goes back to the computed order. */
+export async function setRouteOrder(actor: SessionUser, date: string, visitIds: string[], ip: string) {
+  const db = useDb()
+  if (!visitIds.length) {
+    await db.update(visits).set({ routePosition: null })
+      .where(and(eq(visits.companyId, actor.companyId), eq(visits.technicianId, actor.id), eq(visits.scheduledOn, date)))
+    return technicianDay(actor, { date })
+  }
+  const mine = await db.select({ id: visits.id }).from(visits)
+    .where(and(eq(visits.companyId, actor.companyId), eq(visits.technicianId, actor.id), eq(visits.scheduledOn, date), inArray(visits.id, visitIds)))
+  if (mine.length !== new Set(visitIds).size) throw httpError(400, 'Invalid body: visitIds — every visit must be yours on that day', { fields: { visitIds: 'Every visit must be yours on that day' } })
+  await db.transaction(async (tx) => {
+    for (const [i, id] of visitIds.entries()) await tx.update(visits).set({ routePosition: i + 1 }).where(eq(visits.id, id))
+    await recordAudit(tx, { action: 'visit.route_reordered', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'route', subjectId: date, ip, detail: { visitIds } })
+  })
+  return technicianDay(actor, { date })
+}

@@ -1,0 +1,76 @@
+import { and, asc, eq, gte, inArray, sql } from 'drizzle-orm'
+import { localTimeToInstant, localToday, planVisitDates, reconcileVisits, type PlannedVisit } from '../../shared/utils/recurrence'
+import { closedDays, companies, contractFeatures, contracts, planVisitTemplates, visits, waterFeatures } from '../db/schema'
+import type { Tx } from '../utils/db'
+
+/** The clock generation uses; tests and the demo seed pass their own. */
+export interface GenerationClock { now?: Date }
+
+/**
+ * Brings a contract's generated visits in line with its plan's templates and term: creates the
+ * missing future visits, moves or cancels future unstarted ones, and leaves done, under-way,
+ * skipped and manually moved visits alone. Runs inside the caller's transaction and locks the
+ * contract row, so two regenerations cannot interleave.
+ */
+export async function regenerateContractVisits(tx: Tx, contractId: string, clock: GenerationClock = {}) {
+  const [contract] = await tx.select().from(contracts).where(eq(contracts.id, contractId)).for('update').limit(1)
+  if (!contract) return { inserted: 0, rescheduled: 0, cancelled: 0 }
+  const [company] = await tx.select().from(companies).where(eq(companies.id, contract.companyId)).limit(1)
+  // One connection inside a transaction: run the reads one after another.
+  const templates = await tx.select().from(planVisitTemplates).where(eq(planVisitTemplates.planId, contract.planId)).orderBy(asc(planVisitTemplates.position))
+  const closed = await tx.select({ day: closedDays.day }).from(closedDays).where(and(eq(closedDays.companyId, contract.companyId), gte(closedDays.day, contract.termStart)))
+  const featureSites = await tx.selectDistinct({ siteId: waterFeatures.siteId }).from(contractFeatures)
+    .innerJoin(waterFeatures, eq(waterFeatures.id, contractFeatures.featureId))
+    .where(eq(contractFeatures.contractId, contractId))
+  const existing = await tx.select({
+    id: visits.id, generationKey: visits.generationKey, status: visits.status, movedManually: visits.movedManually,
+    scheduledOn: visits.scheduledOn, statusReason: visits.statusReason,
+  }).from(visits).where(eq(visits.contractId, contractId))
+  const tz = company!.timeZone
+  const today = localToday(tz, clock.now)
+  const dates = planVisitDates(templates, { start: contract.termStart, end: contract.termEnd }, { workingDays: company!.workingDays, closed: new Set(closed.map(c => c.day)) })
+  // A contract's features may sit on more than one site of the customer: one visit per site.
+  const planned: Array<PlannedVisit & { siteId: string }> = featureSites.flatMap(({ siteId }) => dates.map(d => ({ ...d, key: `${d.key}:${siteId}`, siteId })))
+  const r = reconcileVisits(existing, planned, today)
+  const template = new Map(templates.map(t => [t.id, t]))
+  const startOf = (date: string) => localTimeToInstant(date, company!.dayStartsAt, tz)
+
+  if (r.insert.length) {
+    await tx.insert(visits).values(r.insert.map((p) => {
+      const t = template.get(p.templateId)!
+      const siteId = (p as PlannedVisit & { siteId: string }).siteId
+      return {
+        companyId: contract.companyId, contractId, templateId: t.id, customerId: contract.customerId, siteId,
+        visitType: t.visitType, scheduledOn: p.date, startsAt: startOf(p.date), durationMinutes: t.durationMinutes,
+        generationKey: p.key, checklist: t.checklist.map(c => ({ label: c.label, state: null })),
+      }
+    })).onConflictDoNothing()
+  }
+  const byKey = new Map(planned.map(p => [p.key, p]))
+  const existingById = new Map(existing.map(e => [e.id, e]))
+  for (const m of r.reschedule) {
+    const p = byKey.get(existingById.get(m.id)!.generationKey!)!
+    const t = template.get(p.templateId)!
+    await tx.update(visits).set({
+      scheduledOn: m.date, startsAt: startOf(m.date), durationMinutes: t.durationMinutes, visitType: t.visitType,
+      ...(m.revive && { status: 'scheduled' as const, statusReason: '' }),
+      sequence: sql`${visits.sequence} + 1`,
+    }).where(eq(visits.id, m.id))
+  }
+  if (r.cancel.length) {
+    await tx.update(visits).set({ status: 'cancelled', statusReason: 'No longer in the plan', sequence: sql`${visits.sequence} + 1` })
+      .where(inArray(visits.id, r.cancel))
+  }
+  return { inserted: r.insert.length, rescheduled: r.reschedule.length, cancelled: r.cancel.length }
+}
+
+/** Cancels a contract's future, unstarted visits (pause, end, cancel), with the reason shown to people. */
+export async function cancelFutureVisits(tx: Tx, contractId: string, reason: string, clock: GenerationClock = {}) {
+  const [row] = await tx.select({ tz: companies.timeZone }).from(contracts).innerJoin(companies, eq(companies.id, contracts.companyId)).where(eq(contracts.id, contractId)).limit(1)
+  if (!row) return 0
+  const today = localToday(row.tz, clock.now)
+  const cancelled = await tx.update(visits).set({ status: 'cancelled', statusReason: reason, sequence: sql`${visits.sequence} + 1` })
+    .where(and(eq(visits.contractId, contractId), eq(visits.status, 'scheduled'), gte(visits.scheduledOn, today)))
+    .returning({ id: visits.id })
+  return cancelled.length
+}

@@ -1,0 +1,20 @@
+// Money is an integer count of minor units with an ISO 4217 currency. No floating point here.
+
+/** Digits after the decimal point for a currency (2 for USD, 0 for JPY, 3 for BHD). */
+export function currencyMinorDigits(currency: string): number {
+  return new Intl.NumberFormat('en', { style: 'currency', currency }).resolvedOptions().maximumFractionDigits ?? 2
+}
+
+/** 145000 USD → "$1,450.00". */
+export function formatMoney(minor: number, currency: string, locale = 'en-US'): string {
+  const digits = currencyMinorDigits(currency)
+  return new Intl.NumberFormat(locale, { style: 'currency', currency, minimumFractionDigits: digits, maximumFractionDigits: digits }).format(minor / 10 ** digits)
+}
+
+/** "1,450.00" (or "1450", "1450.5") → 145000 minor units; NaN when it is not an amount. */
+export function parseMoney(text: string, currency: string): number {
+  const digits = currencyMinorDigits(currency)
+  const m = text.replace(/[,\s]/g, '').replace(/^[^\d.]+/, '').match(new RegExp(`^(\\d+)(?:\\.(\\d{1,${Math.max(digits, 1)}}))?$`))
+  if (!m || (digits === 0 && m[2])) return Number.NaN
+  return Number(m[1]) * 10 ** digits + Number((m[2] ?? '').padEnd(digits, '0') || 0)
+}
