@@ -109,7 +109,7 @@ CREATE TABLE "staff_profiles" (
 );
 --> statement-breakpoint
 ALTER TABLE "companies" ADD COLUMN "working_days" smallint[] DEFAULT '{1,2,3,4,5}' NOT NULL;--> statement-breakpoint
-ALTER TABLE "companies" ADD COLUMN "day_starts_at" text DEFAULT '08:00' NOT NULL;--> statement-breakpoint
+ALTER TABLE "companies" ADD COLUMN "day_start_time" text DEFAULT '08:00' NOT NULL;--> statement-breakpoint
 ALTER TABLE "companies" ADD COLUMN "base_latitude" double precision;--> statement-breakpoint
 ALTER TABLE "companies" ADD COLUMN "base_longitude" double precision;--> statement-breakpoint
 ALTER TABLE "plan_visit_templates" ADD CONSTRAINT "plan_visit_templates_plan_id_plans_id_fk" FOREIGN KEY ("plan_id") REFERENCES "public"."plans"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
@@ -136,6 +136,7 @@ CREATE INDEX "plans_company_idx" ON "plans" USING btree ("company_id");--> state
 CREATE INDEX "contracts_company_status_idx" ON "contracts" USING btree ("company_id","status");--> statement-breakpoint
 CREATE INDEX "contracts_customer_idx" ON "contracts" USING btree ("customer_id");--> statement-breakpoint
 CREATE INDEX "contracts_term_end_idx" ON "contracts" USING btree ("company_id","term_end");--> statement-breakpoint
+CREATE UNIQUE INDEX "contracts_previous_key" ON "contracts" USING btree ("previous_contract_id");--> statement-breakpoint
 CREATE UNIQUE INDEX "calendar_feeds_token_key" ON "calendar_feeds" USING btree ("token_hash");--> statement-breakpoint
 CREATE UNIQUE INDEX "visits_contract_generation_key" ON "visits" USING btree ("contract_id","generation_key");--> statement-breakpoint
 CREATE INDEX "visits_company_date_idx" ON "visits" USING btree ("company_id","scheduled_on");--> statement-breakpoint

@@ -92,7 +92,7 @@ export async function updateVisit(actor: SessionUser, id: string, input: VisitUp
     if (input.technicianId !== undefined) set.technicianId = input.technicianId
     if (input.durationMinutes !== undefined) set.durationMinutes = input.durationMinutes
     if (input.scheduledOn && input.scheduledOn !== before.scheduledOn) {
-      const [company] = await tx.select({ tz: companies.timeZone, start: companies.dayStartsAt }).from(companies).where(eq(companies.id, actor.companyId)).limit(1)
+      const [company] = await tx.select({ tz: companies.timeZone, start: companies.dayStartTime }).from(companies).where(eq(companies.id, actor.companyId)).limit(1)
       Object.assign(set, { scheduledOn: input.scheduledOn, startsAt: localTimeToInstant(input.scheduledOn, company!.start, company!.tz), movedManually: true, moveReason: input.moveReason ?? '', routePosition: null })
     }
     await tx.update(visits).set({ ...set, sequence: sql`${visits.sequence} + 1` }).where(eq(visits.id, id))

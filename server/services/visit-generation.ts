@@ -33,7 +33,7 @@ export async function regenerateContractVisits(tx: Tx, contractId: string, clock
   const planned: Array<PlannedVisit & { siteId: string }> = featureSites.flatMap(({ siteId }) => dates.map(d => ({ ...d, key: `${d.key}:${siteId}`, siteId })))
   const r = reconcileVisits(existing, planned, today)
   const template = new Map(templates.map(t => [t.id, t]))
-  const startOf = (date: string) => localTimeToInstant(date, company!.dayStartsAt, tz)
+  const startOf = (date: string) => localTimeToInstant(date, company!.dayStartTime, tz)
 
   if (r.insert.length) {
     await tx.insert(visits).values(r.insert.map((p) => {
@@ -49,10 +49,11 @@ export async function regenerateContractVisits(tx: Tx, contractId: string, clock
   const byKey = new Map(planned.map(p => [p.key, p]))
   const existingById = new Map(existing.map(e => [e.id, e]))
   for (const m of r.reschedule) {
-    const p = byKey.get(existingById.get(m.id)!.generationKey!)!
-    const t = template.get(p.templateId)!
+    const p = byKey.get(existingById.get(m.id)!.generationKey!)
+    const t = p ? template.get(p.templateId)! : null
     await tx.update(visits).set({
-      scheduledOn: m.date, startsAt: startOf(m.date), durationMinutes: t.durationMinutes, visitType: t.visitType,
+      scheduledOn: m.date, startsAt: startOf(m.date),
+      ...(t && { durationMinutes: t.durationMinutes, visitType: t.visitType }),
       ...(m.revive && { status: 'scheduled' as const, statusReason: '' }),
       sequence: sql`${visits.sequence} + 1`,
     }).where(eq(visits.id, m.id))

@@ -199,7 +199,10 @@ export function reconcileVisits(existing: readonly ExistingVisit[], planned: rea
   }
   for (const e of existing) {
     if (!e.generationKey || plannedKeys.has(e.generationKey)) continue
-    if (changeable(e)) result.cancel.push(e.id)
+    const revivable = e.status === 'cancelled' && (REVIVABLE_CANCEL_REASONS as readonly string[]).includes(e.statusReason)
+    // A visit a person moved stays where they put it, even after a pause and resume.
+    if (e.movedManually && revivable && e.scheduledOn >= today) result.reschedule.push({ id: e.id, date: e.scheduledOn, revive: true })
+    else if (changeable(e)) result.cancel.push(e.id)
     else result.keep.push(e.id)
   }
   return result

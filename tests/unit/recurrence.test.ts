@@ -127,6 +127,12 @@ describe('regeneration', () => {
     expect(r.insert).toEqual([])
   })
 
+  it('brings back a manually moved visit after a pause, on the day it was moved to', () => {
+    const existing = [visit('moved', '2026-07-14', { status: 'cancelled', statusReason: 'Contract paused', movedManually: true, scheduledOn: '2026-07-17' })]
+    const r = reconcileVisits(existing, [], '2026-07-01')
+    expect(r.reschedule).toEqual([{ id: 'moved', date: '2026-07-17', revive: true }])
+  })
+
   it('never touches past scheduled visits (they are overdue, not regenerated)', () => {
     const r = reconcileVisits([visit('late', '2026-06-01')], [], '2026-06-10')
     expect(r.cancel).toEqual([])

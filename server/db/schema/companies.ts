@@ -17,7 +17,7 @@ export const companies = pgTable('companies', {
   /** ISO weekdays the company works (1 = Monday … 7 = Sunday). */
   workingDays: smallint('working_days').array().notNull().default([1, 2, 3, 4, 5]),
   /** Local time the working day starts, HH:MM; generated visits start then. */
-  dayStartsAt: text('day_starts_at').notNull().default('08:00'),
+  dayStartTime: text('day_start_time').notNull().default('08:00'),
   /** The yard routes start from when a technician has no home base of their own. */
   baseLatitude: doublePrecision('base_latitude'),
   baseLongitude: doublePrecision('base_longitude'),

@@ -1,1 +1,0 @@
-CREATE UNIQUE INDEX "contracts_previous_key" ON "contracts" USING btree ("previous_contract_id");
