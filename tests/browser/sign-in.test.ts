@@ -65,7 +65,7 @@ describe('signing in through the form', () => {
     const page = await context.newPage()
     await signInThroughForm(page, demo.owner)
     await page.waitForURL(url => url.pathname === '/')
-    await page.getByRole('link', { name: 'People' }).first().click()
+    await page.getByRole('link', { name: 'Settings' }).first().click()
     await page.waitForURL(url => url.pathname === '/settings/people')
     await page.getByRole('cell', { name: 'Tess Okafor', exact: true }).waitFor()
     await shot(page, 'owner-people-desktop')
