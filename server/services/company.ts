@@ -1,14 +1,18 @@
-import { eq } from 'drizzle-orm'
-import type { CompanyUpdateInput } from '../../shared/schemas/company'
-import { companies } from '../db/schema'
+import { and, asc, eq, gte } from 'drizzle-orm'
+import type { ClosedDaysInput, CompanyUpdateInput } from '../../shared/schemas/company'
+import { localToday } from '../../shared/utils/recurrence'
+import { closedDays, companies, contracts } from '../db/schema'
 import type { SessionUser } from '../utils/auth'
-import { useDb } from '../utils/db'
+import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { recordAudit } from './audit'
+import { regenerateContractVisits } from './visit-generation'
 
 const columns = {
   id: companies.id, name: companies.name, currency: companies.currency,
   taxRateBasisPoints: companies.taxRateBasisPoints, unitSystem: companies.unitSystem, timeZone: companies.timeZone,
+  workingDays: companies.workingDays, dayStartTime: companies.dayStartTime,
+  baseLatitude: companies.baseLatitude, baseLongitude: companies.baseLongitude,
 }
 
 export async function getCompany(actor: SessionUser) {
@@ -21,6 +25,35 @@ export async function updateCompany(actor: SessionUser, input: CompanyUpdateInpu
   await useDb().transaction(async (tx) => {
     await tx.update(companies).set(input).where(eq(companies.id, actor.companyId))
     await recordAudit(tx, { action: 'settings.changed', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'company', subjectId: actor.companyId, ip, detail: input })
+    // The working week and start time shape every generated visit: bring future ones in line.
+    if (input.workingDays || input.dayStartTime || input.timeZone) await regenerateActiveContracts(tx, actor.companyId)
   })
   return getCompany(actor)
+}
+
+async function regenerateActiveContracts(tx: Tx, companyId: string) {
+  const active = await tx.select({ id: contracts.id }).from(contracts).where(and(eq(contracts.companyId, companyId), eq(contracts.status, 'active')))
+  for (const c of active) await regenerateContractVisits(tx, c.id)
+  return active.length
+}
+
+export async function listClosedDays(actor: SessionUser) {
+  const [company] = await useDb().select({ tz: companies.timeZone }).from(companies).where(eq(companies.id, actor.companyId)).limit(1)
+  const rows = await useDb().select({ day: closedDays.day, reason: closedDays.reason }).from(closedDays)
+    .where(and(eq(closedDays.companyId, actor.companyId), gte(closedDays.day, localToday(company!.tz)))).orderBy(asc(closedDays.day)).limit(200)
+  return { rows, total: rows.length, page: 1, pageSize: 200 }
+}
+
+/** Replaces the upcoming closed days; generated visits move off them. */
+export async function replaceClosedDays(actor: SessionUser, input: ClosedDaysInput, ip: string) {
+  const [company] = await useDb().select({ tz: companies.timeZone }).from(companies).where(eq(companies.id, actor.companyId)).limit(1)
+  const today = localToday(company!.tz)
+  const regenerated = await useDb().transaction(async (tx) => {
+    await tx.delete(closedDays).where(and(eq(closedDays.companyId, actor.companyId), gte(closedDays.day, today)))
+    const future = input.days.filter(d => d.day >= today)
+    if (future.length) await tx.insert(closedDays).values(future.map(d => ({ companyId: actor.companyId, ...d }))).onConflictDoNothing()
+    await recordAudit(tx, { action: 'settings.closed_days', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'company', subjectId: actor.companyId, ip, detail: { days: future.map(d => d.day) } })
+    return regenerateActiveContracts(tx, actor.companyId)
+  })
+  return { ...(await listClosedDays(actor)), regeneratedContracts: regenerated }
 }

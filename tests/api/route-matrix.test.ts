@@ -17,6 +17,8 @@ const MATRIX: Record<string, Who[] | 'public'> = {
   'POST /api/auth/logout': ['owner', 'technician', 'customer'],
   'GET /api/company': ['owner', 'technician', 'customer'],
   'PATCH /api/company': ['owner'],
+  'GET /api/company/closed-days': ['owner', 'technician'],
+  'PUT /api/company/closed-days': ['owner'],
   'GET /api/overview': ['owner'],
   'GET /api/audit': ['owner'],
   'GET /api/users': ['owner'],

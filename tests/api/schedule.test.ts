@@ -207,3 +207,28 @@ describe('calendar feeds (RFC 5545, parsed with ical.js)', () => {
     expect(text).not.toMatch(/Access:|Ashgrove|Lantern/)
   })
 })
+
+describe('company calendar', () => {
+  it('closed days and the working week move future generated visits; bad input is 400 naming the field', async () => {
+    const p = (await api('/api/plans', { method: 'POST', token: owner, body: { ...plan('Closed Day Plan'), templates: [{ visitType: 'routine', rrule: 'FREQ=WEEKLY;BYMONTH=6;BYDAY=WE', durationMinutes: 60 }] } })).body
+    const { customerId, featureId } = await newCustomerWithFeature('Closed Day Customer')
+    const c = (await api('/api/contracts', { method: 'POST', token: owner, body: { customerId, planId: p.id, featureIds: [featureId], termStart: `${nextYear}-03-01` } })).body
+    await api(`/api/contracts/${c.id}/actions`, { method: 'POST', token: owner, body: { action: 'activate' } })
+    const before = (await api(`/api/visits?contractId=${c.id}`, { token: owner })).body.rows.map((v: { scheduledOn: string }) => v.scheduledOn)
+    const firstWednesday = before[0]
+    const existing = (await api('/api/company/closed-days', { token: owner })).body.rows
+    const r = await api('/api/company/closed-days', { method: 'PUT', token: owner, body: { days: [...existing, { day: firstWednesday, reason: 'Test closure' }] } })
+    expect(r.status, JSON.stringify(r.body)).toBe(200)
+    const after = (await api(`/api/visits?contractId=${c.id}`, { token: owner })).body.rows.filter((v: { status: string }) => v.status !== 'cancelled').map((v: { scheduledOn: string }) => v.scheduledOn)
+    expect(after).not.toContain(firstWednesday)
+    expect(after.length).toBe(before.length)
+    // Back as it was.
+    await api('/api/company/closed-days', { method: 'PUT', token: owner, body: { days: existing } })
+    const bad = await api('/api/company/closed-days', { method: 'PUT', token: owner, body: { days: [{ day: 'soon' }] } })
+    expect(bad.status).toBe(400)
+    expect(bad.body.data.fields['days.0.day']).toBeTruthy()
+    const noDays = await api('/api/company', { method: 'PATCH', token: owner, body: { workingDays: [] } })
+    expect(noDays.status).toBe(400)
+    expect(noDays.body.data.fields.workingDays).toBeTruthy()
+  })
+})
