@@ -65,7 +65,9 @@ export default defineNuxtConfig({
   },
   nitro: {
     experimental: { tasks: true },
-    scheduledTasks: {},
+    scheduledTasks: {
+      '* * * * *': ['mail:flush'],
+    },
   },
   typescript: {
     strict: true,

@@ -1,6 +1,7 @@
 #!/usr/bin/env node
 // The one-command runner: PostgreSQL (unless DATABASE_URL is set) → migrations → demo data when
-// the database is empty → build when none exists → the app on http://HOST:PORT.
+// the database is empty → the local mail catcher (unless SMTP_HOST is set) → build when none
+// exists → the app on http://HOST:PORT.
 //   node scripts/start.mjs          built server (npm start)
 //   node scripts/start.mjs --dev    Nuxt's dev server (npm run dev)
 import { spawn, spawnSync } from 'node:child_process'
@@ -9,6 +10,7 @@ import net from 'node:net'
 import { dirname, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { start as startDb } from './db.mjs'
+import { startMailCatcher } from './mail-catcher.mjs'
 import { runMigrations } from './migrate.mjs'
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..')
@@ -38,6 +40,18 @@ async function main() {
   if (seeded.status !== 0) throw new Error('seeding the demo data failed')
 
   const env = { ...process.env, HOST: host, PORT: String(port), NITRO_HOST: host, NITRO_PORT: String(port) }
+  // No real SMTP server configured: catch every message locally (read them at /dev/mailbox).
+  let catcher
+  if (!process.env.SMTP_HOST) {
+    const smtpPort = Number(process.env.RILLBOOK_SMTP_PORT || 2525)
+    const mailDir = resolve(root, process.env.RILLBOOK_MAIL_DIR || '.data/mail')
+    if (await portAnswers('127.0.0.1', smtpPort)) {
+      throw new Error(`something already listens on 127.0.0.1:${smtpPort}; stop it, set RILLBOOK_SMTP_PORT, or set SMTP_HOST for a real mail server`)
+    }
+    catcher = await startMailCatcher({ port: smtpPort, dir: mailDir, log: msg => process.stderr.write(`${msg}\n`) })
+    Object.assign(env, { RILLBOOK_MAIL_DIR: mailDir, SMTP_HOST: '127.0.0.1', SMTP_PORT: String(smtpPort) })
+  }
+  else say(`sending mail through ${process.env.SMTP_HOST}`)
   let child
   if (dev) {
     child = spawn(bin('nuxt'), ['dev', '--host', host, '--port', String(port)], { cwd: root, stdio: 'inherit', env })
@@ -59,7 +73,10 @@ async function main() {
     say(`Rillbook is ready on http://${host}:${port} (Ctrl-C stops it; npm run db:stop stops the database)`)
   }
   for (const sig of ['SIGINT', 'SIGTERM']) process.on(sig, () => child.kill(sig))
-  child.on('exit', code => process.exit(code ?? 0))
+  child.on('exit', async (code) => {
+    await Promise.race([catcher?.close(), new Promise(r => setTimeout(r, 1000))])
+    process.exit(code ?? 0)
+  })
 }
 
 main().catch((err) => {

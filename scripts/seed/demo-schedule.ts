@@ -1,11 +1,12 @@
 // Demo plans, two seasons of contracts and their visits, relative to today so the demo always has
 // a finished season, a current one with visits done, today's stops and upcoming visits.
 import { and, eq, lt } from 'drizzle-orm'
-import { closedDays, companies, contractFeatures, contracts, plans, planVisitTemplates, staffProfiles, visits } from '../../server/db/schema'
+import { closedDays, companies, contractFeatures, contracts, plans, planVisitTemplates, products, staffProfiles, visits } from '../../server/db/schema'
 import { cancelFutureVisits, regenerateContractVisits } from '../../server/services/visit-generation'
 import type { Tx } from '../../server/utils/db'
 import { addDays, localToday, termEndFor } from '../../shared/utils/recurrence'
 import { demoClosedMonthDays, demoPlans } from './demo-plans'
+import { demoProducts } from './demo-products'
 
 interface FeatureRef { id: string, kind: string, customerKey: string }
 
@@ -30,6 +31,10 @@ export async function seedSchedule(tx: Tx, companyId: string, demoId: (key: stri
     { userId: dario, capacityMinutes: 450, homeLatitude: 44.163, homeLongitude: -91.331 },
     { userId: demoId('owner'), capacityMinutes: 240, homeLatitude: 44.141, homeLongitude: -91.352 },
   ]).onConflictDoNothing()
+
+  for (const { key, ...p } of demoProducts) {
+    added += (await tx.insert(products).values({ id: demoId(key), companyId, ...p }).onConflictDoNothing().returning({ id: products.id })).length
+  }
 
   for (const p of demoPlans) {
     const planId = demoId(p.key)

@@ -24,6 +24,9 @@ export const PERMISSIONS = {
   'schedule.manage': ['owner'],
   'schedule.read': ['owner', 'technician'],
   'calendar.own': ['owner', 'technician', 'customer'],
+  /** Running a visit: the owner, or the technician it is assigned to (checked in the service). */
+  'visits.work': ['owner', 'technician'],
+  'products.manage': ['owner'],
 } as const satisfies Record<string, readonly Role[]>
 
 export type Permission = keyof typeof PERMISSIONS

@@ -1,7 +1,10 @@
 // Global setup shared by the api and browser projects: a throwaway PostgreSQL on loopback, the
-// migrations and demo data, a fresh build, and the built server on its own port. It runs once
-// per `vitest run` even though two projects list it (the state lives on globalThis).
+// migrations and demo data, a fresh build, the local mail catcher, and the built server on its
+// own port. It runs once per `vitest run` even though two projects list it (the state lives on
+// globalThis).
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process'
+import { mkdirSync, readFileSync, rmSync } from 'node:fs'
+import net from 'node:net'
 import { resolve } from 'node:path'
 import type { TestProject } from 'vitest/node'
 // @ts-expect-error plain ESM script without types
@@ -11,6 +14,9 @@ import { runMigrations } from '../../scripts/migrate.mjs'
 
 const root = resolve(import.meta.dirname, '../..')
 const PORT = Number(process.env.RILLBOOK_TEST_PORT || 3199)
+const UPLOADS_DIR = resolve(root, '.data/uploads-test')
+const SMTP_PORT = Number(process.env.RILLBOOK_TEST_SMTP_PORT || 2526)
+const MAIL_DIR = resolve(root, '.data/mail-test')
 
 interface TestEnv { baseUrl: string, databaseUrl: string, adminUrl: string, server: ChildProcess, ownsCluster: boolean, users: number }
 const g = globalThis as unknown as { __rillbookTestEnv?: Promise<TestEnv> }
@@ -34,6 +40,63 @@ async function waitFor(url: string, server: ChildProcess) {
   throw new Error(`the test server did not answer at ${url}`)
 }
 
+function portAnswers(port: number) {
+  return new Promise<boolean>((done) => {
+    const s = net.connect({ host: '127.0.0.1', port })
+    s.once('connect', () => { s.destroy(); done(true) })
+    s.once('error', () => done(false))
+  })
+}
+
+async function waitForPort(port: number, open: boolean, what: string) {
+  const deadline = Date.now() + 15_000
+  while (Date.now() < deadline) {
+    if (await portAnswers(port) === open) return
+    await new Promise(r => setTimeout(r, 100))
+  }
+  throw new Error(`${what}: 127.0.0.1:${port} ${open ? 'never answered' : 'is still taken'}`)
+}
+
+/** The pid the catcher (or tests/helpers/mail.ts after a restart) wrote to its pid file. */
+function catcherPid(): number | null {
+  try {
+    const pid = Number(readFileSync(resolve(MAIL_DIR, 'catcher.pid'), 'utf8').trim())
+    return Number.isInteger(pid) && pid > 0 ? pid : null
+  }
+  catch {
+    return null
+  }
+}
+
+function killCatcher() {
+  const pid = catcherPid()
+  if (!pid) return
+  try {
+    process.kill(pid, 'SIGTERM')
+  }
+  catch {}
+}
+
+/** An empty mailbox and a fresh catcher on SMTP_PORT (a catcher left by an aborted run is stopped first). */
+async function startCatcher() {
+  if (await portAnswers(SMTP_PORT)) {
+    killCatcher()
+    await waitForPort(SMTP_PORT, false, 'a mail catcher from an earlier run (see .data/mail-test/catcher.pid)')
+  }
+  rmSync(MAIL_DIR, { recursive: true, force: true })
+  mkdirSync(MAIL_DIR, { recursive: true })
+  const catcher = spawn(process.execPath, [resolve(root, 'scripts/mail-catcher.mjs'), '--port', String(SMTP_PORT), '--dir', MAIL_DIR], {
+    cwd: root,
+    stdio: ['ignore', 'ignore', 'inherit'],
+  })
+  const deadline = Date.now() + 15_000
+  while (!(await portAnswers(SMTP_PORT)) || catcherPid() !== catcher.pid) {
+    if (catcher.exitCode !== null) throw new Error('the mail catcher exited')
+    if (Date.now() > deadline) throw new Error(`the mail catcher did not listen on 127.0.0.1:${SMTP_PORT}`)
+    await new Promise(r => setTimeout(r, 100))
+  }
+}
+
 async function bringUp(): Promise<TestEnv> {
   let databaseUrl: string
   let adminUrl: string
@@ -53,6 +116,8 @@ async function bringUp(): Promise<TestEnv> {
   const env = { ...process.env, DATABASE_URL: databaseUrl }
   run(resolve(root, 'node_modules/.bin/tsx'), ['scripts/seed.ts'], env)
   if (process.env.RILLBOOK_TEST_SKIP_BUILD !== '1') run(resolve(root, 'node_modules/.bin/nuxt'), ['build'], env)
+  await startCatcher()
+  rmSync(UPLOADS_DIR, { recursive: true, force: true })
 
   const server = spawn(process.execPath, [resolve(root, '.output/server/index.mjs')], {
     cwd: root,
@@ -63,10 +128,26 @@ async function bringUp(): Promise<TestEnv> {
       NITRO_PORT: String(PORT),
       // Tests pose as other addresses through X-Forwarded-For to exercise the per-address limit.
       RILLBOOK_TRUST_PROXY: '1',
+      // All mail goes to the catcher; tests read it from MAIL_DIR (tests/helpers/mail.ts).
+      RILLBOOK_MAIL_DIR: MAIL_DIR,
+      SMTP_HOST: '127.0.0.1',
+      SMTP_PORT: String(SMTP_PORT),
+      SMTP_SECURE: '0',
+      SMTP_USER: '',
+      // Photos of the test run, away from the demo's.
+      RILLBOOK_UPLOADS_DIR: UPLOADS_DIR,
+      RILLBOOK_UPLOADS_DRIVER: 'fs',
     },
   })
   const baseUrl = `http://127.0.0.1:${PORT}`
-  await waitFor(`${baseUrl}/api/health`, server)
+  try {
+    await waitFor(`${baseUrl}/api/health`, server)
+  }
+  catch (err) {
+    server.kill('SIGTERM')
+    killCatcher()
+    throw err
+  }
   return { baseUrl, databaseUrl, adminUrl, server, ownsCluster: !external, users: 0 }
 }
 
@@ -77,12 +158,16 @@ export async function setup(project: TestProject) {
   project.provide('baseUrl', env.baseUrl)
   project.provide('databaseUrl', env.databaseUrl)
   project.provide('adminUrl', env.adminUrl)
+  project.provide('mailDir', MAIL_DIR)
+  project.provide('smtpPort', SMTP_PORT)
 }
 
 export async function teardown() {
   const env = await g.__rillbookTestEnv
   if (!env || --env.users > 0) return
   env.server.kill('SIGTERM')
+  // By the pid file: a test may have stopped the first catcher and started another.
+  killCatcher()
   if (env.ownsCluster) stopDb(clusterConfig({ name: 'pg-test', port: Number(process.env.RILLBOOK_TEST_PG_PORT || 54339) }))
 }
 
@@ -91,5 +176,7 @@ declare module 'vitest' {
     baseUrl: string
     databaseUrl: string
     adminUrl: string
+    mailDir: string
+    smtpPort: number
   }
 }

@@ -36,6 +36,10 @@ export const visits = pgTable('visits', {
   startedAt: timestamp('started_at', { withTimezone: true }),
   finishedAt: timestamp('finished_at', { withTimezone: true }),
   statusReason: text('status_reason').notNull().default(''),
+  /** Shown in the visit report. */
+  customerNotes: text('customer_notes').notNull().default(''),
+  /** Staff only. */
+  internalNotes: text('internal_notes').notNull().default(''),
   /** Bumped on every change, for the iCalendar SEQUENCE. */
   sequence: integer('sequence').notNull().default(0),
   ...timestamps,

@@ -1,6 +1,6 @@
-import { idParam } from '../../../shared/schemas/common'
-import { visitUpdateSchema } from '../../../shared/schemas/visits'
-import { updateVisit } from '../../services/schedule'
+import { idParam } from '../../../../shared/schemas/common'
+import { visitUpdateSchema } from '../../../../shared/schemas/visits'
+import { updateVisit } from '../../../services/schedule'
 
 // Assign or reassign a technician; move a visit to another day (with a reason).
 export default defineEventHandler(async (event) => {

@@ -1,5 +1,5 @@
-import { idParam } from '../../../shared/schemas/common'
-import { getVisit } from '../../services/schedule'
+import { idParam } from '../../../../shared/schemas/common'
+import { getVisit } from '../../../services/schedule'
 
 export default defineEventHandler(async (event) => {
   const user = await requireUser(event, { permission: 'contracts.read' })

@@ -1,0 +1,28 @@
+import { z } from 'zod'
+import { idParam } from '../../../../shared/schemas/common'
+import { localDate } from '../../../../shared/schemas/contracts'
+import { featureReadings, READING_CSV_COLUMNS, READING_SORTS, toCsv } from '../../../services/history'
+
+const query = z.object({
+  page: z.coerce.number().int().min(1).default(1),
+  pageSize: z.coerce.number().int().min(1).max(100).default(25),
+  sort: z.enum(READING_SORTS).default('takenAt'),
+  dir: z.enum(['asc', 'desc']).default('desc'),
+  from: localDate.optional(),
+  to: localDate.optional(),
+  format: z.enum(['json', 'csv']).default('json'),
+})
+
+// A feature's water tests; ?format=csv downloads them (up to 10,000 rows in the range).
+export default defineEventHandler(async (event) => {
+  const user = await requireUser(event, { permission: 'records.read' })
+  const { id } = paramsAs(event, idParam)
+  const q = queryAs(event, query)
+  if (q.format === 'csv') {
+    const { rows } = await featureReadings(user, id, q, true)
+    setResponseHeader(event, 'content-type', 'text/csv; charset=utf-8')
+    setResponseHeader(event, 'content-disposition', `attachment; filename="water-tests-${id}.csv"`)
+    return toCsv(READING_CSV_COLUMNS, rows)
+  }
+  return featureReadings(user, id, q)
+})
