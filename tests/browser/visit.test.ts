@@ -78,3 +78,22 @@ describe('a technician runs a visit on a phone', () => {
     })
   }
 })
+
+describe('the treatment catalogue', () => {
+  it('the owner adds a treatment with its label rate', async () => {
+    const context = await browser.newContext({ viewport: VIEWPORTS.desktop })
+    const page = await context.newPage()
+    await signInThroughForm(page, demo.owner)
+    await page.waitForURL(url => url.pathname === '/')
+    await page.goto(`${baseUrl()}/settings/treatments`)
+    await page.getByRole('button', { name: 'Add', exact: true }).click()
+    await page.getByText('Name the product by what it is').waitFor()
+    await page.getByLabel('Name (what it is, no brand)').fill('Barley straw extract (liquid)')
+    await page.getByLabel('Label amount').fill('10')
+    await page.getByLabel(/^Per \(/).fill('100')
+    await page.getByRole('button', { name: 'Add', exact: true }).click()
+    await page.getByRole('heading', { name: 'Barley straw extract (liquid)' }).waitFor()
+    await shot(page, 'treatments-desktop')
+    await context.close()
+  })
+})
