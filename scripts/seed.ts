@@ -9,6 +9,7 @@ import { closeDb, useDb } from '../server/utils/db'
 import { hashPassword } from '../server/utils/password'
 import { DEMO_PASSWORD, demoCompany, demoCustomers, demoStaff } from './seed/demo-data'
 import { demoSitesAndFeatures } from './seed/demo-features'
+import { seedReadings } from './seed/demo-readings'
 import { seedSchedule } from './seed/demo-schedule'
 
 /** A stable UUID (version-5 layout) for a demo key. */
@@ -63,6 +64,7 @@ export async function seedDemo() {
     }
     const featureRefs = features.map(f => ({ id: demoId(f.key), kind: f.kind, customerKey: demoSites.find(s => s.key === f.siteKey)!.customerKey }))
     added += await seedSchedule(tx, companyId, demoId, featureRefs, demoCustomers.map(c => c.key))
+    added += await seedReadings(tx, companyId, demoId)
   })
   return added
 }
