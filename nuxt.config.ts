@@ -67,6 +67,8 @@ export default defineNuxtConfig({
     experimental: { tasks: true },
     scheduledTasks: {
       '* * * * *': ['mail:flush'],
+      // The alert scan every ten minutes (its cost follows new readings; it runs once across instances).
+      '*/10 * * * *': ['alerts:scan'],
     },
   },
   typescript: {

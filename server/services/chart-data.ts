@@ -1,0 +1,131 @@
+import { and, asc, eq, gte, type SQL } from 'drizzle-orm'
+import { DateTime } from 'luxon'
+import type { RangeTable } from '../../shared/types/water'
+import type { VisitType } from '../../shared/types/schedule'
+import { companies, doses, readings, visits } from '../db/schema'
+import type { SessionUser } from '../utils/auth'
+import { useDb } from '../utils/db'
+import { getFeature } from './features'
+
+/** Time windows of the trend charts. */
+export const SERIES_RANGES = ['season', 'year', 'all'] as const
+export type SeriesRange = (typeof SERIES_RANGES)[number]
+
+/** Reading columns that can be charted, in the order the charts appear. */
+export const CHART_PARAMETERS = [
+  'temperatureC', 'pH', 'totalAmmoniaMgL', 'nh3MgL', 'nitriteMgL', 'nitrateMgL', 'khMgL', 'ghMgL',
+  'dissolvedOxygenMgL', 'doSaturationPct', 'saltGL', 'chlorineMgL', 'phosphateMgL', 'waterLevelMm',
+] as const
+export type ChartParameter = (typeof CHART_PARAMETERS)[number]
+
+/** Names and the SI units the values are stored in (the screens convert temperature for US companies). */
+const META: Record<ChartParameter, { label: string, unit: string }> = {
+  temperatureC: { label: 'Temperature', unit: '°C' },
+  pH: { label: 'pH', unit: '' },
+  totalAmmoniaMgL: { label: 'Total ammonia (TAN, as N)', unit: 'mg/L' },
+  nh3MgL: { label: 'Un-ionized ammonia (NH3)', unit: 'mg/L' },
+  nitriteMgL: { label: 'Nitrite', unit: 'mg/L' },
+  nitrateMgL: { label: 'Nitrate', unit: 'mg/L' },
+  khMgL: { label: 'KH (as CaCO3)', unit: 'mg/L' },
+  ghMgL: { label: 'GH (as CaCO3)', unit: 'mg/L' },
+  dissolvedOxygenMgL: { label: 'Dissolved oxygen', unit: 'mg/L' },
+  doSaturationPct: { label: 'Oxygen saturation', unit: '%' },
+  saltGL: { label: 'Salt', unit: 'g/L' },
+  chlorineMgL: { label: 'Chlorine', unit: 'mg/L' },
+  phosphateMgL: { label: 'Phosphate', unit: 'mg/L' },
+  waterLevelMm: { label: 'Water level', unit: 'mm' },
+}
+
+/** Most points sent per parameter; longer histories are thinned evenly (first and last kept). */
+export const MAX_POINTS = 5000
+const MAX_MARKERS = 2000
+
+export type SeriesPoint = [time: string, value: number]
+export interface ParameterSeries { key: ChartParameter, label: string, unit: string, points: SeriesPoint[] }
+export interface FeatureSeries {
+  featureId: string
+  range: SeriesRange
+  /** Start of the window (null for 'all') and the moment it was computed. */
+  from: string | null
+  to: string
+  parameters: ParameterSeries[]
+  ranges: RangeTable
+  /** Finished visits at the feature's site: the local date, the type, and when it started. */
+  visits: Array<{ date: string, type: VisitType, time: string }>
+  doses: Array<{ time: string, productName: string, amount: number, unit: string }>
+}
+
+/** Start of a window: 'season' runs from 1 March (company time) of the current season. */
+export function windowStart(range: SeriesRange, timeZone: string, now: Date): Date | null {
+  if (range === 'all') return null
+  if (range === 'year') return new Date(now.getTime() - 365 * 86_400_000)
+  const local = DateTime.fromJSDate(now, { zone: timeZone })
+  const year = local.month >= 3 ? local.year : local.year - 1
+  return DateTime.fromObject({ year, month: 3, day: 1 }, { zone: timeZone }).toJSDate()
+}
+
+/** At most `max` points, evenly spread over the list, keeping the first and the last. */
+export function thin<T>(points: T[], max = MAX_POINTS): T[] {
+  if (points.length <= max) return points
+  const out: T[] = []
+  const step = (points.length - 1) / (max - 1)
+  for (let i = 0; i < max; i++) out.push(points[Math.round(i * step)]!)
+  return out
+}
+
+/**
+ * A feature's readings as one time series per parameter, with its ranges, visits and doses, for
+ * the trend charts. Tenancy through getFeature (404 outside the caller's reach). Readings come
+ * from one range scan of `readings_feature_taken_idx`, ordered by time.
+ */
+export async function featureSeries(
+  actor: SessionUser, featureId: string,
+  q: { range: SeriesRange, parameters?: ChartParameter[] },
+  now: Date = new Date(),
+): Promise<FeatureSeries> {
+  const feature = await getFeature(actor, featureId)
+  const db = useDb()
+  const [company] = await db.select({ tz: companies.timeZone }).from(companies).where(eq(companies.id, actor.companyId)).limit(1)
+  const timeZone = company?.tz ?? 'UTC'
+  const from = windowStart(q.range, timeZone, now)
+  const keys: ChartParameter[] = q.parameters?.length ? CHART_PARAMETERS.filter(k => q.parameters!.includes(k)) : [...CHART_PARAMETERS]
+
+  const readingWhere: SQL[] = [eq(readings.featureId, featureId), eq(readings.companyId, actor.companyId)]
+  if (from) readingWhere.push(gte(readings.takenAt, from))
+  const columns = Object.fromEntries(keys.map(k => [k, readings[k]])) as Record<ChartParameter, typeof readings.pH>
+
+  const visitWhere: SQL[] = [eq(visits.siteId, feature.siteId), eq(visits.companyId, actor.companyId), eq(visits.status, 'done')]
+  if (from) visitWhere.push(gte(visits.scheduledOn, DateTime.fromJSDate(from, { zone: timeZone }).toISODate()!))
+  const doseWhere: SQL[] = [eq(doses.featureId, featureId), eq(doses.companyId, actor.companyId)]
+  if (from) doseWhere.push(gte(doses.dosedAt, from))
+
+  const [rows, visitRows, doseRows] = await Promise.all([
+    db.select({ takenAt: readings.takenAt, ...columns }).from(readings).where(and(...readingWhere)).orderBy(asc(readings.takenAt)),
+    db.select({ date: visits.scheduledOn, type: visits.visitType, startedAt: visits.startedAt, finishedAt: visits.finishedAt, startsAt: visits.startsAt })
+      .from(visits).where(and(...visitWhere)).orderBy(asc(visits.scheduledOn)).limit(MAX_MARKERS),
+    db.select({ time: doses.dosedAt, productName: doses.productName, amount: doses.amount, unit: doses.unit })
+      .from(doses).where(and(...doseWhere)).orderBy(asc(doses.dosedAt)).limit(MAX_MARKERS),
+  ])
+
+  const series = new Map<ChartParameter, SeriesPoint[]>(keys.map(k => [k, []]))
+  for (const row of rows) {
+    const time = row.takenAt.toISOString()
+    for (const k of keys) {
+      const v = (row as Record<string, unknown>)[k]
+      if (typeof v === 'number' && Number.isFinite(v)) series.get(k)!.push([time, v])
+    }
+  }
+  // Without an explicit list, only parameters that were measured in the window.
+  const shown = q.parameters?.length ? keys : keys.filter(k => series.get(k)!.length > 0)
+
+  return {
+    featureId,
+    range: q.range,
+    from: from?.toISOString() ?? null,
+    to: now.toISOString(),
+    parameters: shown.map(k => ({ key: k, ...META[k], points: thin(series.get(k)!) })),
+    ranges: feature.ranges,
+    visits: visitRows.map(v => ({ date: v.date, type: v.type, time: (v.startedAt ?? v.finishedAt ?? v.startsAt).toISOString() })),
+    doses: doseRows.map(d => ({ time: d.time.toISOString(), productName: d.productName, amount: d.amount, unit: d.unit })),
+  }
+}
