@@ -63,8 +63,8 @@ export async function seedDemo() {
       }).onConflictDoNothing().returning({ id: waterFeatures.id })).length
     }
     const featureRefs = features.map(f => ({ id: demoId(f.key), kind: f.kind, customerKey: demoSites.find(s => s.key === f.siteKey)!.customerKey }))
-    added += await seedSchedule(tx, companyId, demoId, featureRefs, demoCustomers.map(c => c.key))
-    added += await seedReadings(tx, companyId, demoId)
+    const schedule = await seedSchedule(tx, companyId, demoId, featureRefs, demoCustomers.map(c => c.key))
+    added += schedule.added + await seedReadings(tx, companyId, demoId, schedule.contractIds)
   })
   return added
 }

@@ -18,11 +18,11 @@ function rand(seed: string) {
 /** A stable UUID from a key (same layout as the seed's demoId). */
 type IdFor = (key: string) => string
 
-export async function seedReadings(tx: Tx, companyId: string, idFor: IdFor) {
-  const done = await tx.select({ id: visits.id, contractId: visits.contractId, siteId: visits.siteId, startedAt: visits.startedAt, scheduledOn: visits.scheduledOn })
-    .from(visits).where(and(eq(visits.companyId, companyId), eq(visits.status, 'done'))).orderBy(asc(visits.scheduledOn))
-  const contractIds = [...new Set(done.flatMap(v => (v.contractId ? [v.contractId] : [])))]
+/** Readings for the finished visits of the contracts the seed just created (none on a re-run). */
+export async function seedReadings(tx: Tx, companyId: string, idFor: IdFor, contractIds: string[]) {
   if (!contractIds.length) return 0
+  const done = await tx.select({ id: visits.id, contractId: visits.contractId, siteId: visits.siteId, startedAt: visits.startedAt, scheduledOn: visits.scheduledOn })
+    .from(visits).where(and(eq(visits.companyId, companyId), eq(visits.status, 'done'), inArray(visits.contractId, contractIds))).orderBy(asc(visits.scheduledOn))
   const features = await tx.select({ contractId: contractFeatures.contractId, id: waterFeatures.id, siteId: waterFeatures.siteId, kind: waterFeatures.kind, fish: waterFeatures.fish })
     .from(contractFeatures).innerJoin(waterFeatures, eq(waterFeatures.id, contractFeatures.featureId)).where(inArray(contractFeatures.contractId, contractIds))
   const rows: Array<typeof readings.$inferInsert> = []

@@ -12,6 +12,8 @@ interface FeatureRef { id: string, kind: string, customerKey: string }
 
 export async function seedSchedule(tx: Tx, companyId: string, demoId: (key: string) => string, features: FeatureRef[], customerKeys: string[]) {
   let added = 0
+  /** Contracts this run created: only their visits get demo readings. */
+  const created: string[] = []
   const [company] = await tx.select().from(companies).where(eq(companies.id, companyId)).limit(1)
   const today = localToday(company!.timeZone)
   const [year, month] = today.split('-').map(Number) as [number, number]
@@ -81,6 +83,7 @@ export async function seedSchedule(tx: Tx, companyId: string, demoId: (key: stri
     }).onConflictDoNothing().returning({ id: contracts.id })
     if (!previous.length) continue
     added++
+    created.push(prevId, ...(churned ? [] : [currId]))
     await tx.insert(contractFeatures).values(a.featureIds.map((featureId, position) => ({ contractId: prevId, featureId, position })))
     await regenerateContractVisits(tx, prevId, { now: new Date(`${addDays(previousStart, -7)}T12:00:00Z`) })
     if (!churned) {
@@ -120,5 +123,5 @@ export async function seedSchedule(tx: Tx, companyId: string, demoId: (key: stri
       termStart: nextStart, termEnd: termEndFor(nextStart, 12), currency: company!.currency, autoRenew: true, notes: 'Quote accepted by phone; activate once the deposit is in.',
     }).onConflictDoNothing().returning({ id: contracts.id })).length
   }
-  return added
+  return { added, contractIds: created }
 }

@@ -83,7 +83,9 @@ describe('the alert scan', () => {
 
   it('flags an overdue visit, a UV bulb due and a contract ending without renewal; acknowledging and resolving work', async () => {
     const v = await visitForTessToday('alerts-due')
-    const yesterday = new Date(Date.now() - 86_400_000).toISOString().slice(0, 10)
+    // Dates in the company's time zone (Today's date), not the test machine's.
+    const companyToday = (await api('/api/today', { token: tess })).body.date as string
+    const yesterday = new Date(Date.parse(`${companyToday}T12:00:00Z`) - 86_400_000).toISOString().slice(0, 10)
     await api(`/api/visits/${v.visitId}`, { method: 'PATCH', token: owner, body: { scheduledOn: yesterday, moveReason: 'Test overdue' } })
     await api(`/api/features/${v.featureId}`, { method: 'PATCH', token: owner, body: { equipment: { uvClarifier: { watts: 18, bulbInstalledOn: '2020-04-01' } } } })
     const plan = (await api('/api/plans?pageSize=1', { token: owner })).body.rows[0]
@@ -100,7 +102,7 @@ describe('the alert scan', () => {
     expect((await api(`/api/alerts/${renewal.id}`, { method: 'PATCH', token: tess, body: { status: 'acknowledged' } })).body.status).toBe('acknowledged')
     expect((await api(`/api/alerts/${renewal.id}`, { method: 'PATCH', token: owner, body: { status: 'resolved', note: 'Customer renews by phone' } })).body.status).toBe('resolved')
     // The overdue alert closes once the visit is no longer overdue.
-    const today = new Date().toISOString().slice(0, 10)
+    const today = companyToday
     await api(`/api/visits/${v.visitId}`, { method: 'PATCH', token: owner, body: { scheduledOn: today, moveReason: 'Back to today' } })
     await scan()
     const after = (await api('/api/alerts?status=active&pageSize=100', { token: owner })).body.rows as Array<{ condition: string, title: string }>

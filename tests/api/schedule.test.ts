@@ -130,7 +130,7 @@ describe('contracts and their visits', () => {
 
 describe('board, assignment and today', () => {
   it('the board shows visits with each technician\'s load, flags a day over capacity, and assignment works', async () => {
-    const today = new Date().toISOString().slice(0, 10)
+    const today = (await api('/api/today', { token: tess })).body.date as string
     const b = await api(`/api/schedule?from=${today}&to=${today}`, { token: owner })
     expect(b.status).toBe(200)
     expect(b.body.technicians.map((t: { name: string }) => t.name)).toEqual(expect.arrayContaining(['Tess Okafor', 'Dario Lindqvist']))

@@ -98,7 +98,7 @@ describe('records in the browser', () => {
     await page.getByRole('link', { name: 'Koi pond' }).first().click()
     await page.getByRole('heading', { level: 1, name: 'Koi pond' }).waitFor()
     await page.getByLabel('Temperature (°F)').fill('75')
-    await page.getByLabel('pH').fill('8.4')
+    await page.getByRole('textbox', { name: 'pH', exact: true }).fill('8.4')
     await page.getByLabel('Total ammonia (mg/L)').fill('1.5')
     await page.getByLabel('KH (mg/L as CaCO3)').fill('40')
     await page.getByRole('button', { name: 'Check' }).click()
