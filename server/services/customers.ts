@@ -1,6 +1,6 @@
 import { and, asc, count, desc, eq, exists, ilike, isNotNull, isNull, or, sql, type SQL } from 'drizzle-orm'
 import type { CustomerInput, CustomerUpdateInput } from '../../shared/schemas/customers'
-import { customerContacts, customers, sites, users, waterFeatures } from '../db/schema'
+import { contracts, customerContacts, customers, sites, users, waterFeatures } from '../db/schema'
 import { isStaff, ownCustomerId, type SessionUser } from '../utils/auth'
 import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
@@ -121,11 +121,12 @@ export async function updateCustomer(actor: SessionUser, id: string, input: Cust
 export async function removeCustomer(actor: SessionUser, id: string, ip: string) {
   await getCustomer(actor, id)
   const db = useDb()
-  const [[siteCount], [loginCount]] = await Promise.all([
+  const [[siteCount], [loginCount], [contractCount]] = await Promise.all([
     db.select({ n: count() }).from(sites).where(eq(sites.customerId, id)),
     db.select({ n: count() }).from(users).where(eq(users.customerId, id)),
+    db.select({ n: count() }).from(contracts).where(eq(contracts.customerId, id)),
   ])
-  const hasHistory = (siteCount?.n ?? 0) > 0 || (loginCount?.n ?? 0) > 0
+  const hasHistory = (siteCount?.n ?? 0) > 0 || (loginCount?.n ?? 0) > 0 || (contractCount?.n ?? 0) > 0
   return db.transaction(async (tx) => {
     const base = { companyId: actor.companyId, actorUserId: actor.id, subjectType: 'customer', subjectId: id, ip }
     if (hasHistory) {

@@ -5,7 +5,7 @@ import {
   DEFAULT_PROFILES, featureSurfaceAreaM2, featureVolumeLitres, mergeRanges, profileKeyForKind,
   turnoverPerHour, WaterInputError,
 } from '../../shared/utils/water-chemistry'
-import { customers, rangeProfiles, sites, waterFeatures } from '../db/schema'
+import { contractFeatures, customers, doses, photos, rangeProfiles, readings, sites, waterFeatures } from '../db/schema'
 import { ownCustomerId, type SessionUser } from '../utils/auth'
 import { useDb } from '../utils/db'
 import { httpError } from '../utils/errors'
@@ -169,10 +169,7 @@ export async function updateFeature(actor: SessionUser, id: string, input: Featu
   return getFeature(actor, id)
 }
 
-/**
- * Deletes a feature nothing refers to yet; later history (visits, readings) makes this archive
- * instead — extend `featureHasHistory` as those tables arrive.
- */
+/** Deletes a feature nothing refers to; one with history (contracts, readings, doses, photos) is archived. */
 export async function removeFeature(actor: SessionUser, id: string, ip: string) {
   await getFeature(actor, id)
   const history = await featureHasHistory(id)
@@ -189,7 +186,11 @@ export async function removeFeature(actor: SessionUser, id: string, ip: string) 
   })
 }
 
-/** True when records that must be kept refer to the feature. No such tables exist yet. */
-async function featureHasHistory(_id: string) {
-  return false
+/** True when records that must be kept refer to the feature: contracts, water tests, doses, photos. */
+async function featureHasHistory(id: string) {
+  const { rows } = await useDb().execute<{ used: boolean }>(sql`select exists (select 1 from ${contractFeatures} where feature_id = ${id})
+    or exists (select 1 from ${readings} where feature_id = ${id})
+    or exists (select 1 from ${doses} where feature_id = ${id})
+    or exists (select 1 from ${photos} where feature_id = ${id}) as used`)
+  return !!rows[0]?.used
 }

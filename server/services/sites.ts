@@ -1,6 +1,6 @@
 import { and, asc, count, eq, ilike, isNotNull, isNull, or, type SQL } from 'drizzle-orm'
 import type { SiteInput, SiteUpdateInput } from '../../shared/schemas/sites'
-import { customers, sites, waterFeatures } from '../db/schema'
+import { customers, sites, visits, waterFeatures } from '../db/schema'
 import { isStaff, ownCustomerId, type SessionUser } from '../utils/auth'
 import { useDb } from '../utils/db'
 import { httpError } from '../utils/errors'
@@ -79,14 +79,17 @@ export async function updateSite(actor: SessionUser, id: string, input: SiteUpda
   return getSite(actor, id)
 }
 
-/** Deletes a site without features; one with features is archived instead. */
+/** Deletes a site without features or visits; one with them is archived instead. */
 export async function removeSite(actor: SessionUser, id: string, ip: string) {
   await getSite(actor, id)
   const db = useDb()
-  const [features] = await db.select({ n: count() }).from(waterFeatures).where(eq(waterFeatures.siteId, id))
+  const [[features], [siteVisits]] = await Promise.all([
+    db.select({ n: count() }).from(waterFeatures).where(eq(waterFeatures.siteId, id)),
+    db.select({ n: count() }).from(visits).where(eq(visits.siteId, id)),
+  ])
   return db.transaction(async (tx) => {
     const base = { companyId: actor.companyId, actorUserId: actor.id, subjectType: 'site', subjectId: id, ip }
-    if ((features?.n ?? 0) > 0) {
+    if ((features?.n ?? 0) > 0 || (siteVisits?.n ?? 0) > 0) {
       await tx.update(sites).set({ archivedAt: new Date() }).where(and(eq(sites.id, id), eq(sites.companyId, actor.companyId)))
       await recordAudit(tx, { ...base, action: 'site.archived' })
       return { id, outcome: 'archived' as const }

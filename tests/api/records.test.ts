@@ -130,3 +130,14 @@ describe('range profiles', () => {
     await api(`/api/range-profiles/${koi.id}`, { method: 'PATCH', token: owner, body: { ranges: koi.ranges } })
   })
 })
+
+describe('removing records with history', () => {
+  it('a feature with water tests or a contract is archived, never a 500', async () => {
+    const owner = await tokenFor(demo.owner)
+    const feature = (await api('/api/features?q=Whitcombe', { token: owner })).body.rows[0]
+    const r = await api(`/api/features/${feature.id}`, { method: 'DELETE', token: owner })
+    expect(r.status).toBe(200)
+    expect(r.body.outcome).toBe('archived')
+    expect((await api(`/api/features/${feature.id}`, { method: 'PATCH', token: owner, body: { archived: false } })).body.archivedAt).toBeNull()
+  })
+})
