@@ -3,6 +3,7 @@ import { addDays, localToday } from '../../shared/utils/recurrence'
 import { dailyWaterLossMm, topUpLitresToMm, waterLossStatus } from '../../shared/utils/water-chemistry'
 import { alerts, companies, contracts, customerContacts, customers, doses, readings, taskWatermarks, users, visits, waterFeatures } from '../db/schema'
 import type { SessionUser } from '../utils/auth'
+import { escapeHtml } from '../utils/html'
 import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { recordAudit } from './audit'
@@ -146,12 +147,12 @@ async function notifyAct(tx: Tx, a: typeof alerts.$inferSelect) {
     : []
   const staff = [...new Set([...owners, ...techs].map(u => u.email))]
   const text = `${a.title}\n\nOpen alerts: /alerts\n\nFish are at risk when ammonia or nitrite climb or oxygen falls: act today. Follow product labels; power near water only on a GFCI/RCD protected circuit.`
-  await enqueueMail(tx, { companyId: a.companyId, dedupeKey: `alert:${a.id}:act`, to: staff, subject: `Act today: ${a.title.slice(0, 90)}`, text, html: `<p><strong>${esc(a.title)}</strong></p><p>Open alerts in Rillbook: /alerts</p><p style="font-size:12px">Follow product labels; power near water only on a GFCI/RCD protected circuit.</p>` })
+  await enqueueMail(tx, { companyId: a.companyId, dedupeKey: `alert:${a.id}:act`, to: staff, subject: `Act today: ${a.title.slice(0, 90)}`, text, html: `<p><strong>${escapeHtml(a.title)}</strong></p><p>Open alerts in Rillbook: /alerts</p><p style="font-size:12px">Follow product labels; power near water only on a GFCI/RCD protected circuit.</p>` })
   if (a.featureId) {
     const contacts = await tx.select({ email: customerContacts.email }).from(waterFeatures).innerJoin(customerContacts, eq(customerContacts.customerId, waterFeatures.customerId))
       .where(and(eq(waterFeatures.id, a.featureId), eq(customerContacts.getsAlerts, true)))
     const to = [...new Set(contacts.flatMap(c => (c.email ? [c.email] : [])))]
-    await enqueueMail(tx, { companyId: a.companyId, dedupeKey: `alert:${a.id}:customer`, to, subject: 'Your pond needs attention today', text: `${a.title}\n\nWe will be in touch today. Until then: feed lightly or not at all, keep the pump and aerator running, and call us if fish gasp at the surface.`, html: `<p>${esc(a.title)}</p><p>We will be in touch today. Until then: feed lightly or not at all, keep the pump and aerator running, and call us if fish gasp at the surface.</p>` })
+    await enqueueMail(tx, { companyId: a.companyId, dedupeKey: `alert:${a.id}:customer`, to, subject: 'Your pond needs attention today', text: `${a.title}\n\nWe will be in touch today. Until then: feed lightly or not at all, keep the pump and aerator running, and call us if fish gasp at the surface.`, html: `<p>${escapeHtml(a.title)}</p><p>We will be in touch today. Until then: feed lightly or not at all, keep the pump and aerator running, and call us if fish gasp at the surface.</p>` })
   }
   await tx.update(alerts).set({ notifiedAt: new Date() }).where(eq(alerts.id, a.id))
 }
@@ -167,12 +168,11 @@ async function queueWatchDigests(tx: Tx, now: Date) {
     const day = localToday(tz, now)
     await enqueueMail(tx, {
       companyId, dedupeKey: `digest:${companyId}:${day}`, to: owners.map(o => o.email), subject: `${titles.length} things to watch — ${day}`,
-      text: titles.map(t => `- ${t}`).join('\n'), html: `<ul>${titles.map(t => `<li>${esc(t)}</li>`).join('')}</ul>`,
+      text: titles.map(t => `- ${t}`).join('\n'), html: `<ul>${titles.map(t => `<li>${escapeHtml(t)}</li>`).join('')}</ul>`,
     })
   }
 }
 
-const esc = (s: string) => s.replace(/[&<>"']/g, c => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', '\'': '&#39;' })[c]!)
 
 export async function listAlerts(actor: SessionUser, q: { page: number, pageSize: number, status?: 'open' | 'acknowledged' | 'resolved' | 'active', severity?: Severity, featureId?: string }) {
   const db = useDb()

@@ -139,10 +139,3 @@ export async function removeCustomer(actor: SessionUser, id: string, ip: string)
     return { id, outcome: 'deleted' as const }
   })
 }
-
-/** The signed-in customer's own record. */
-export async function myCustomer(actor: SessionUser) {
-  const id = ownCustomerId(actor)
-  if (!id) throw httpError(404, 'This sign-in is not linked to a customer')
-  return getCustomer(actor, id)
-}

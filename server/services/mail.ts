@@ -1,3 +1,4 @@
+import { escapeHtml } from '../utils/html'
 import { randomUUID } from 'node:crypto'
 import { readdir, readFile } from 'node:fs/promises'
 import { join } from 'node:path'
@@ -162,10 +163,6 @@ export async function listOutbox(companyId: string, q: { page: number, pageSize:
     db.select({ n: count() }).from(outbox).where(cond),
   ])
   return { rows, total: total?.n ?? 0, page: q.page, pageSize: q.pageSize }
-}
-
-function escapeHtml(s: string) {
-  return s.replace(/[&<>"']/g, c => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', '\'': '&#39;' })[c]!)
 }
 
 /** Queues a short test message to the signed-in user's own address and sends what is due. */

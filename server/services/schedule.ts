@@ -3,7 +3,7 @@ import type { VisitUpdateInput } from '../../shared/schemas/visits'
 import type { VisitType } from '../../shared/types/schedule'
 import { localTimeToInstant, localToday } from '../../shared/utils/recurrence'
 import { companies, contractFeatures, customers, sites, staffProfiles, users, visits, waterFeatures } from '../db/schema'
-import type { SessionUser } from '../utils/auth'
+import { ownCustomerId, type SessionUser } from '../utils/auth'
 import { useDb } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { recordAudit } from './audit'
@@ -69,10 +69,11 @@ export async function board(actor: SessionUser, q: { from: string, to: string, t
 
 export async function getVisit(actor: SessionUser, id: string) {
   const db = useDb()
+  const own = ownCustomerId(actor)
   const [v] = await db.select({ ...visitColumns, checklist: visits.checklist, startedAt: visits.startedAt, finishedAt: visits.finishedAt })
     .from(visits).innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
     .leftJoin(users, eq(users.id, visits.technicianId))
-    .where(and(eq(visits.id, id), eq(visits.companyId, actor.companyId), actor.role === 'customer' ? eq(visits.customerId, actor.customerId ?? '') : undefined)).limit(1)
+    .where(and(eq(visits.id, id), eq(visits.companyId, actor.companyId), own ? eq(visits.customerId, own) : undefined)).limit(1)
   if (!v) throw httpError(404, 'No such visit')
   return v
 }
@@ -118,7 +119,8 @@ export async function featuresForVisits(visitRows: Array<{ id: string, contractI
 export async function listVisits(actor: SessionUser, q: { page: number, pageSize: number, customerId?: string, contractId?: string, from?: string, upcoming: boolean }) {
   const db = useDb()
   const where: SQL[] = [eq(visits.companyId, actor.companyId)]
-  if (actor.role === 'customer') where.push(eq(visits.customerId, actor.customerId ?? '00000000-0000-0000-0000-000000000000'))
+  const own = ownCustomerId(actor)
+  if (own) where.push(eq(visits.customerId, own))
   else if (q.customerId) where.push(eq(visits.customerId, q.customerId))
   if (q.contractId) where.push(eq(visits.contractId, q.contractId))
   if (q.upcoming) {

@@ -2,9 +2,9 @@ import { and, asc, eq, gt, inArray } from 'drizzle-orm'
 import { VISIT_TYPE_LABELS } from '../../shared/types/schedule'
 import { companies, customerContacts, customers, doses, photos, readings, sites, visits, waterFeatures } from '../db/schema'
 import type { Tx } from '../utils/db'
+import { escapeHtml } from '../utils/html'
 import { enqueueMail } from './mail'
 
-const esc = (s: string) => s.replace(/[&<>"']/g, c => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', '\'': '&#39;' })[c]!)
 const STATUS_WORDS = { ok: 'in range', watch: 'worth watching', act: 'needs action' } as const
 
 export const REPORT_CAUTIONS = [
@@ -69,17 +69,17 @@ export async function queueVisitReport(tx: Tx, visitId: string) {
 
   const color = { ok: '#4e6426', watch: '#9c4617', act: '#8e2418' }
   const html = `<!doctype html><html><body style="font-family:system-ui,sans-serif;color:#1f1d1a;max-width:640px">
-<h1 style="color:#0c3f3c;font-size:20px">${esc(subject)}</h1>
-<p>Hello ${esc(v.customerName)},</p>
-<p>${esc(v.companyName)} finished the ${esc(VISIT_TYPE_LABELS[v.visitType].toLowerCase())} at ${esc(v.siteName)} on ${esc(fmtDate(v.scheduledOn))}.</p>
-<h2 style="font-size:16px">What we did</h2><ul>${(done.length ? done : ['The visit checklist']).map(d => `<li>${esc(d)}</li>`).join('')}${problems.map(p => `<li><strong>Problem:</strong> ${esc(p)}</li>`).join('')}</ul>
-<h2 style="font-size:16px">Water tests</h2>${readingLines.length ? `<ul>${readingLines.map(l => `<li>${esc(l.featureName)}: ${esc(l.text.replace(/ \(.+\)$/, ''))} — <strong style="color:${color[l.status]}">${STATUS_WORDS[l.status]}</strong></li>`).join('')}</ul>` : '<p>No water test this visit.</p>'}
-<h2 style="font-size:16px">What we added</h2>${doseLines.length ? `<ul>${doseLines.map(d => `<li>${esc(d)}</li>`).join('')}</ul>` : '<p>Nothing this visit.</p>'}
-<h2 style="font-size:16px">Until the next visit</h2><ul>${advice.map(a => `<li>${esc(a)}</li>`).join('')}</ul>
-${v.customerNotes ? `<h2 style="font-size:16px">Notes from your technician</h2><p>${esc(v.customerNotes)}</p>` : ''}
-${photoRows.length ? `<h2 style="font-size:16px">Photos</h2><p>${photoRows.map(p => `<img src="cid:photo-${p.id}" alt="${esc(p.caption || 'Visit photo')}" width="160" style="margin:2px;border-radius:6px">`).join('')}</p>` : ''}
-<p><strong>${next ? `Next visit: ${esc(VISIT_TYPE_LABELS[next.visitType])} on ${esc(fmtDate(next.scheduledOn))}.` : 'No further visit is booked yet.'}</strong></p>
-<p style="font-size:12px;color:#625b51">${REPORT_CAUTIONS.map(esc).join('<br>')}</p>
+<h1 style="color:#0c3f3c;font-size:20px">${escapeHtml(subject)}</h1>
+<p>Hello ${escapeHtml(v.customerName)},</p>
+<p>${escapeHtml(v.companyName)} finished the ${escapeHtml(VISIT_TYPE_LABELS[v.visitType].toLowerCase())} at ${escapeHtml(v.siteName)} on ${escapeHtml(fmtDate(v.scheduledOn))}.</p>
+<h2 style="font-size:16px">What we did</h2><ul>${(done.length ? done : ['The visit checklist']).map(d => `<li>${escapeHtml(d)}</li>`).join('')}${problems.map(p => `<li><strong>Problem:</strong> ${escapeHtml(p)}</li>`).join('')}</ul>
+<h2 style="font-size:16px">Water tests</h2>${readingLines.length ? `<ul>${readingLines.map(l => `<li>${escapeHtml(l.featureName)}: ${escapeHtml(l.text.replace(/ \(.+\)$/, ''))} — <strong style="color:${color[l.status]}">${STATUS_WORDS[l.status]}</strong></li>`).join('')}</ul>` : '<p>No water test this visit.</p>'}
+<h2 style="font-size:16px">What we added</h2>${doseLines.length ? `<ul>${doseLines.map(d => `<li>${escapeHtml(d)}</li>`).join('')}</ul>` : '<p>Nothing this visit.</p>'}
+<h2 style="font-size:16px">Until the next visit</h2><ul>${advice.map(a => `<li>${escapeHtml(a)}</li>`).join('')}</ul>
+${v.customerNotes ? `<h2 style="font-size:16px">Notes from your technician</h2><p>${escapeHtml(v.customerNotes)}</p>` : ''}
+${photoRows.length ? `<h2 style="font-size:16px">Photos</h2><p>${photoRows.map(p => `<img src="cid:photo-${p.id}" alt="${escapeHtml(p.caption || 'Visit photo')}" width="160" style="margin:2px;border-radius:6px">`).join('')}</p>` : ''}
+<p><strong>${next ? `Next visit: ${escapeHtml(VISIT_TYPE_LABELS[next.visitType])} on ${escapeHtml(fmtDate(next.scheduledOn))}.` : 'No further visit is booked yet.'}</strong></p>
+<p style="font-size:12px;color:#625b51">${REPORT_CAUTIONS.map(escapeHtml).join('<br>')}</p>
 </body></html>`
 
   return enqueueMail(tx, {
