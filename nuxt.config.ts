@@ -69,6 +69,8 @@ export default defineNuxtConfig({
       '* * * * *': ['mail:flush'],
       // The alert scan every ten minutes (its cost follows new readings; it runs once across instances).
       '*/10 * * * *': ['alerts:scan'],
+      // Billing once a day (UTC; each company's own date decides what is due). Once across instances.
+      '15 11 * * *': ['billing:renew'],
     },
   },
   typescript: {

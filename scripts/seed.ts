@@ -10,6 +10,7 @@ import { hashPassword } from '../server/utils/password'
 import { DEMO_PASSWORD, demoCompany, demoCustomers, demoStaff } from './seed/demo-data'
 import { demoSitesAndFeatures } from './seed/demo-features'
 import { seedReadings } from './seed/demo-readings'
+import { seedInvoices } from './seed/demo-invoices'
 import { seedSchedule } from './seed/demo-schedule'
 
 /** A stable UUID (version-5 layout) for a demo key. */
@@ -65,6 +66,7 @@ export async function seedDemo() {
     const featureRefs = features.map(f => ({ id: demoId(f.key), kind: f.kind, customerKey: demoSites.find(s => s.key === f.siteKey)!.customerKey }))
     const schedule = await seedSchedule(tx, companyId, demoId, featureRefs, demoCustomers.map(c => c.key))
     added += schedule.added + await seedReadings(tx, companyId, demoId, schedule.contractIds)
+    added += await seedInvoices(tx, companyId, schedule.contractIds)
   })
   return added
 }

@@ -1,7 +1,7 @@
 #!/usr/bin/env node
 // The one-command runner: PostgreSQL (unless DATABASE_URL is set) → migrations → demo data when
-// the database is empty → the local mail catcher (unless SMTP_HOST is set) → build when none
-// exists → the app on http://HOST:PORT.
+// the database is empty → the local mail catcher (unless SMTP_HOST is set) → the local payment
+// fake (unless STRIPE_SECRET_KEY is set) → build when none exists → the app on http://HOST:PORT.
 //   node scripts/start.mjs          built server (npm start)
 //   node scripts/start.mjs --dev    Nuxt's dev server (npm run dev)
 import { spawn, spawnSync } from 'node:child_process'
@@ -11,6 +11,7 @@ import { dirname, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { start as startDb } from './db.mjs'
 import { startMailCatcher } from './mail-catcher.mjs'
+import { startPaymentFake } from './payment-fake.mjs'
 import { runMigrations } from './migrate.mjs'
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..')
@@ -52,6 +53,23 @@ async function main() {
     Object.assign(env, { RILLBOOK_MAIL_DIR: mailDir, SMTP_HOST: '127.0.0.1', SMTP_PORT: String(smtpPort) })
   }
   else say(`sending mail through ${process.env.SMTP_HOST}`)
+  env.RILLBOOK_PUBLIC_URL ||= `http://${host}:${port}`
+  // No payment provider configured: run the local fake and point the provider's SDK at it.
+  let payments
+  if (!process.env.STRIPE_SECRET_KEY) {
+    const paymentsPort = Number(process.env.RILLBOOK_PAYMENTS_PORT || 12111)
+    if (await portAnswers('127.0.0.1', paymentsPort)) {
+      throw new Error(`something already listens on 127.0.0.1:${paymentsPort}; stop it, set RILLBOOK_PAYMENTS_PORT, or set STRIPE_SECRET_KEY for the real service`)
+    }
+    const secret = process.env.STRIPE_WEBHOOK_SECRET || 'whsec_rillbook_local_demo'
+    payments = await startPaymentFake({
+      port: paymentsPort, dir: resolve(root, process.env.RILLBOOK_PAYMENTS_DIR || '.data/payments'),
+      webhookUrl: `http://${host}:${port}/api/webhooks/payments`, webhookSecret: secret, publicBaseUrl: `http://127.0.0.1:${paymentsPort}`,
+    })
+    Object.assign(env, { STRIPE_SECRET_KEY: 'sk_test_rillbook_local', STRIPE_WEBHOOK_SECRET: secret, STRIPE_API_URL: payments.url })
+    say(`payments go to the local payment fake on ${payments.url} (test card 4242 4242 4242 4242)`)
+  }
+  else say(process.env.STRIPE_API_URL ? `payments go to ${process.env.STRIPE_API_URL}` : 'payments go to the payment provider')
   let child
   if (dev) {
     child = spawn(bin('nuxt'), ['dev', '--host', host, '--port', String(port)], { cwd: root, stdio: 'inherit', env })
@@ -74,7 +92,7 @@ async function main() {
   }
   for (const sig of ['SIGINT', 'SIGTERM']) process.on(sig, () => child.kill(sig))
   child.on('exit', async (code) => {
-    await Promise.race([catcher?.close(), new Promise(r => setTimeout(r, 1000))])
+    await Promise.race([Promise.all([catcher?.close(), payments?.close()]), new Promise(r => setTimeout(r, 1000))])
     process.exit(code ?? 0)
   })
 }

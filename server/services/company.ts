@@ -13,6 +13,7 @@ const columns = {
   taxRateBasisPoints: companies.taxRateBasisPoints, unitSystem: companies.unitSystem, timeZone: companies.timeZone,
   workingDays: companies.workingDays, dayStartTime: companies.dayStartTime,
   baseLatitude: companies.baseLatitude, baseLongitude: companies.baseLongitude,
+  address: companies.address, billingEmail: companies.billingEmail, paymentTermsDays: companies.paymentTermsDays,
 }
 
 export async function getCompany(actor: SessionUser) {

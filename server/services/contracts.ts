@@ -152,21 +152,32 @@ export async function actOnContract(actor: SessionUser, id: string, act: Contrac
         await setStatus('cancelled', { endedAt: new Date() })
         return { id, cancelledVisits: await cancelFutureVisits(tx, id, 'Contract cancelled', clock) }
       case 'renew': {
-        const [prev] = await tx.select().from(contracts).where(eq(contracts.id, id)).limit(1)
-        const [plan] = await tx.select().from(plans).where(eq(plans.id, prev!.planId)).limit(1)
-        const termStart = addDays(prev!.termEnd, 1)
-        const [next] = await tx.insert(contracts).values({
-          companyId: prev!.companyId, customerId: prev!.customerId, planId: prev!.planId, status: 'active',
-          termStart, termEnd: termEndFor(termStart, plan!.termMonths), priceOverrideMinor: prev!.priceOverrideMinor,
-          currency: prev!.currency, autoRenew: prev!.autoRenew, previousContractId: id, notes: prev!.notes, activatedAt: new Date(),
-        }).returning({ id: contracts.id })
-        const features = await tx.select({ featureId: contractFeatures.featureId }).from(contractFeatures).where(eq(contractFeatures.contractId, id)).orderBy(asc(contractFeatures.position))
-        await writeFeatures(tx, next!.id, features.map(f => f.featureId))
-        await recordAudit(tx, { ...base, subjectId: id, action: 'contract.renew', detail: { next: next!.id, termStart } })
-        await recordAudit(tx, { ...base, subjectId: next!.id, action: 'contract.created', detail: { renews: id } })
-        return { id: next!.id, visits: await regenerateContractVisits(tx, next!.id, clock) }
+        const next = await renewInTx(tx, id, { actorUserId: actor.id, ip, clock })
+        return { id: next.id, visits: next.visits }
       }
     }
   })
   return { ...result, contract: await getContract(actor, result.id) }
+}
+
+/**
+ * Starts the next term of a contract (same plan, price, features and renewal setting) with its
+ * visits, inside the caller's transaction. The unique index on `previous_contract_id` makes a
+ * second renewal of the same term fail, so a retried renewal cannot make two.
+ */
+export async function renewInTx(tx: Tx, id: string, opts: { actorUserId: string | null, ip: string | null, clock?: GenerationClock }) {
+  const [prev] = await tx.select().from(contracts).where(eq(contracts.id, id)).limit(1)
+  const [plan] = await tx.select().from(plans).where(eq(plans.id, prev!.planId)).limit(1)
+  const termStart = addDays(prev!.termEnd, 1)
+  const [next] = await tx.insert(contracts).values({
+    companyId: prev!.companyId, customerId: prev!.customerId, planId: prev!.planId, status: 'active',
+    termStart, termEnd: termEndFor(termStart, plan!.termMonths), priceOverrideMinor: prev!.priceOverrideMinor,
+    currency: prev!.currency, autoRenew: prev!.autoRenew, previousContractId: id, notes: prev!.notes, activatedAt: opts.clock?.now ?? new Date(),
+  }).returning({ id: contracts.id })
+  const features = await tx.select({ featureId: contractFeatures.featureId }).from(contractFeatures).where(eq(contractFeatures.contractId, id)).orderBy(asc(contractFeatures.position))
+  await writeFeatures(tx, next!.id, features.map(f => f.featureId))
+  const base = { companyId: prev!.companyId, actorUserId: opts.actorUserId, subjectType: 'contract', ip: opts.ip }
+  await recordAudit(tx, { ...base, subjectId: id, action: 'contract.renew', detail: { next: next!.id, termStart } })
+  await recordAudit(tx, { ...base, subjectId: next!.id, action: 'contract.created', detail: { renews: id } })
+  return { id: next!.id, termStart, visits: await regenerateContractVisits(tx, next!.id, opts.clock) }
 }

@@ -33,3 +33,27 @@ export async function closeDb() {
   pool = undefined
   instance = undefined
 }
+
+/**
+ * Runs `fn` while holding a PostgreSQL session advisory lock named `name` on a connection of its
+ * own, so a job that spans many transactions runs once across every app instance. Returns
+ * `{ skipped: true }` when another holder has it. A crashed holder's connection closes and the
+ * lock goes with it.
+ */
+export async function withSessionLock<T>(name: string, fn: () => Promise<T>): Promise<{ skipped: true } | { skipped: false, value: T }> {
+  useDb()
+  const client = await pool!.connect()
+  try {
+    const { rows: [row] } = await client.query<{ ok: boolean }>('select pg_try_advisory_lock(hashtext($1)) as ok', [name])
+    if (!row?.ok) return { skipped: true }
+    try {
+      return { skipped: false, value: await fn() }
+    }
+    finally {
+      await client.query('select pg_advisory_unlock(hashtext($1))', [name]).catch(() => {})
+    }
+  }
+  finally {
+    client.release()
+  }
+}

@@ -29,6 +29,10 @@ export const companyUpdateSchema = z.object({
   dayStartTime: z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'Use a time like 08:00'),
   baseLatitude: z.number().min(-90).max(90).nullable(),
   baseLongitude: z.number().min(-180).max(180).nullable(),
+  /** Printed on invoices, one line per line. */
+  address: z.string().trim().max(400, 'Use at most 400 characters'),
+  billingEmail: z.union([z.literal(''), z.email('Use an e-mail address like billing@example.com')]),
+  paymentTermsDays: z.number('Payment terms are a number of days').int('Use whole days').min(0, 'At least 0 days (due on receipt)').max(120, 'At most 120 days'),
 }).partial().refine(v => Object.keys(v).length > 0, { message: 'Nothing to change', path: ['_'] })
 export type CompanyUpdateInput = z.output<typeof companyUpdateSchema>
 

@@ -27,6 +27,11 @@ export const PERMISSIONS = {
   /** Running a visit: the owner, or the technician it is assigned to (checked in the service). */
   'visits.work': ['owner', 'technician'],
   'products.manage': ['owner'],
+  /** Invoices: the owner makes and changes them; customers read and pay only their own (enforced in the services). */
+  'billing.manage': ['owner'],
+  'invoices.read': ['owner', 'customer'],
+  'invoices.pay': ['customer'],
+  'revenue.read': ['owner'],
 } as const satisfies Record<string, readonly Role[]>
 
 export type Permission = keyof typeof PERMISSIONS

@@ -11,14 +11,20 @@ import type { TestProject } from 'vitest/node'
 import { clusterConfig, ensureDatabase, start as startDb, stop as stopDb, urlFor } from '../../scripts/db.mjs'
 // @ts-expect-error plain ESM script without types
 import { runMigrations } from '../../scripts/migrate.mjs'
+// @ts-expect-error plain ESM script without types
+import { startPaymentFake } from '../../scripts/payment-fake.mjs'
 
 const root = resolve(import.meta.dirname, '../..')
 const PORT = Number(process.env.RILLBOOK_TEST_PORT || 3199)
 const UPLOADS_DIR = resolve(root, '.data/uploads-test')
 const SMTP_PORT = Number(process.env.RILLBOOK_TEST_SMTP_PORT || 2526)
 const MAIL_DIR = resolve(root, '.data/mail-test')
+const PAYMENTS_PORT = Number(process.env.RILLBOOK_TEST_PAYMENTS_PORT || 12112)
+const PAYMENTS_DIR = resolve(root, '.data/payments-test')
+/** The test run's payment settings: the SDK goes to the local fake, which signs webhooks with this secret. */
+const STRIPE_TEST = { STRIPE_SECRET_KEY: 'sk_test_rillbook_tests', STRIPE_WEBHOOK_SECRET: 'whsec_rillbook_tests', STRIPE_API_URL: `http://127.0.0.1:${PAYMENTS_PORT}` }
 
-interface TestEnv { baseUrl: string, databaseUrl: string, adminUrl: string, server: ChildProcess, ownsCluster: boolean, users: number }
+interface TestEnv { baseUrl: string, databaseUrl: string, adminUrl: string, server: ChildProcess, ownsCluster: boolean, users: number, payments: { close: () => Promise<void> } }
 const g = globalThis as unknown as { __rillbookTestEnv?: Promise<TestEnv> }
 
 function run(cmd: string, args: string[], env: NodeJS.ProcessEnv) {
@@ -118,6 +124,12 @@ async function bringUp(): Promise<TestEnv> {
   if (process.env.RILLBOOK_TEST_SKIP_BUILD !== '1') run(resolve(root, 'node_modules/.bin/nuxt'), ['build'], env)
   await startCatcher()
   rmSync(UPLOADS_DIR, { recursive: true, force: true })
+  if (await portAnswers(PAYMENTS_PORT)) throw new Error(`127.0.0.1:${PAYMENTS_PORT} is taken (a payment fake from an earlier run?); stop it or set RILLBOOK_TEST_PAYMENTS_PORT`)
+  rmSync(PAYMENTS_DIR, { recursive: true, force: true })
+  const payments = await startPaymentFake({
+    port: PAYMENTS_PORT, dir: PAYMENTS_DIR, webhookUrl: `http://127.0.0.1:${PORT}/api/webhooks/payments`,
+    webhookSecret: STRIPE_TEST.STRIPE_WEBHOOK_SECRET, publicBaseUrl: `http://127.0.0.1:${PAYMENTS_PORT}`,
+  })
 
   const server = spawn(process.execPath, [resolve(root, '.output/server/index.mjs')], {
     cwd: root,
@@ -137,6 +149,9 @@ async function bringUp(): Promise<TestEnv> {
       // Photos of the test run, away from the demo's.
       RILLBOOK_UPLOADS_DIR: UPLOADS_DIR,
       RILLBOOK_UPLOADS_DRIVER: 'fs',
+      // Payments through the provider's SDK to the local fake; links in e-mails to this server.
+      ...STRIPE_TEST,
+      RILLBOOK_PUBLIC_URL: `http://127.0.0.1:${PORT}`,
     },
   })
   const baseUrl = `http://127.0.0.1:${PORT}`
@@ -146,9 +161,10 @@ async function bringUp(): Promise<TestEnv> {
   catch (err) {
     server.kill('SIGTERM')
     killCatcher()
+    await payments.close()
     throw err
   }
-  return { baseUrl, databaseUrl, adminUrl, server, ownsCluster: !external, users: 0 }
+  return { baseUrl, databaseUrl, adminUrl, server, ownsCluster: !external, users: 0, payments }
 }
 
 export async function setup(project: TestProject) {
@@ -160,12 +176,15 @@ export async function setup(project: TestProject) {
   project.provide('adminUrl', env.adminUrl)
   project.provide('mailDir', MAIL_DIR)
   project.provide('smtpPort', SMTP_PORT)
+  project.provide('paymentsUrl', STRIPE_TEST.STRIPE_API_URL)
+  project.provide('paymentsEnv', STRIPE_TEST)
 }
 
 export async function teardown() {
   const env = await g.__rillbookTestEnv
   if (!env || --env.users > 0) return
   env.server.kill('SIGTERM')
+  await env.payments.close()
   // By the pid file: a test may have stopped the first catcher and started another.
   killCatcher()
   if (env.ownsCluster) stopDb(clusterConfig({ name: 'pg-test', port: Number(process.env.RILLBOOK_TEST_PG_PORT || 54339) }))
@@ -178,5 +197,7 @@ declare module 'vitest' {
     adminUrl: string
     mailDir: string
     smtpPort: number
+    paymentsUrl: string
+    paymentsEnv: Record<string, string>
   }
 }

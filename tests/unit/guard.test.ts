@@ -4,7 +4,9 @@ import { describe, expect, it } from 'vitest'
 import { listApiRoutes } from '../helpers/routes'
 
 // The only routes that may run without the guard. Everything else calls requireUser() first.
-const PUBLIC = new Set(['POST /api/auth/login', 'GET /api/health', 'GET /api/calendar/:token'])
+// Public on purpose: signing in, the health check, calendar feeds (a secret token in the URL) and
+// the payment provider's webhook (a signature over the body instead of a sign-in).
+const PUBLIC = new Set(['POST /api/auth/login', 'GET /api/health', 'GET /api/calendar/:token', 'POST /api/webhooks/payments'])
 
 describe('every API route is guarded', () => {
   const routes = listApiRoutes()

@@ -21,5 +21,10 @@ export const companies = pgTable('companies', {
   /** The yard routes start from when a technician has no home base of their own. */
   baseLatitude: doublePrecision('base_latitude'),
   baseLongitude: doublePrecision('base_longitude'),
+  /** Printed on invoices. */
+  address: text('address').notNull().default(''),
+  billingEmail: text('billing_email').notNull().default(''),
+  /** Invoices fall due this many days after they are issued. */
+  paymentTermsDays: smallint('payment_terms_days').notNull().default(30),
   ...timestamps,
 })

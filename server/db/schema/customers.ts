@@ -21,6 +21,8 @@ export const customers = pgTable('customers', {
   active: boolean('active').notNull().default(true),
   /** Set instead of deleting a customer that has history. */
   archivedAt: timestamp('archived_at', { withTimezone: true }),
+  /** The payment provider's customer id, made the first time the customer is billed there. */
+  paymentCustomerId: text('payment_customer_id'),
   ...timestamps,
 }, t => [
   index('customers_company_name_idx').on(t.companyId, t.name),

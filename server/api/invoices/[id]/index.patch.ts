@@ -1,0 +1,11 @@
+import { invoiceUpdateSchema } from '../../../../shared/schemas/billing'
+import { idParam } from '../../../../shared/schemas/common'
+import { updateInvoice } from '../../../services/invoices'
+
+// A draft's lines and notes; an open invoice is voided and raised again instead.
+export default defineEventHandler(async (event) => {
+  const user = await requireUser(event, { permission: 'billing.manage' })
+  const { id } = paramsAs(event, idParam)
+  const input = await readBodyAs(event, invoiceUpdateSchema)
+  return updateInvoice(user, id, input, requestIp(event))
+})

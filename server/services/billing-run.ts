@@ -1,0 +1,209 @@
+import { and, asc, eq, inArray, isNull, lt, lte, notExists, or, sql } from 'drizzle-orm'
+import { VISIT_TYPE_LABELS } from '../../shared/types/schedule'
+import { daysBetween, monthlyPeriods, reminderStageFor, RENEWAL_LEAD_DAYS, TERM_INVOICE_LEAD_DAYS, REMINDER_DAYS } from '../../shared/utils/billing'
+import { addDays, localToday } from '../../shared/utils/recurrence'
+import { companies, contracts, invoices, plans, taskRuns, visits } from '../db/schema'
+import { useDb, withSessionLock, type Tx } from '../utils/db'
+import { paymentsConfigured } from '../utils/payments'
+import { recordAudit } from './audit'
+import { renewInTx } from './contracts'
+import { syncInvoiceToProvider } from './invoice-payments'
+import { finalizeInTx, insertDraft, queueInvoiceMail, sendInTx, type NewInvoice } from './invoices'
+
+export const BILLING_TASK = 'billing:renew'
+
+export interface BillingRunOptions {
+  /** Only this company (tests, the owner's "run now"); every company otherwise. */
+  companyId?: string
+  /** Company-local "today" for every company (tests); each company's own date otherwise. */
+  today?: string
+  now?: Date
+  /** Called after each unit of work is committed (the crash test kills the process here). */
+  onUnit?: (done: number) => void
+}
+
+export interface BillingRunSummary {
+  renewed: number
+  ended: number
+  invoicesRaised: number
+  providerSynced: number
+  providerFailed: number
+  reminders: number
+}
+
+const fmtDate = (d: string) => new Intl.DateTimeFormat('en-US', { month: 'short', day: 'numeric', year: 'numeric', timeZone: 'UTC' }).format(new Date(`${d}T12:00:00Z`))
+
+/**
+ * The daily billing job: renews auto-renewing terms, ends finished ones, raises the invoices that
+ * are due (yearly terms in advance, each month of a monthly contract, each finished per-visit
+ * visit), opens and e-mails them, brings the payment provider's copies up to date and sends the
+ * overdue reminders (7, 14 and 30 days).
+ *
+ * Safe to repeat and to kill at any point: every unit of work is its own transaction, and what it
+ * creates is keyed — a term is renewed once (unique previous_contract_id), an invoice exists once
+ * per contract and period (unique billing_key), a reminder once per stage (reminder_stage), a
+ * provider object once per idempotency key. A second run finds nothing left to do; a run after a
+ * crash or a provider outage finishes what the first did not. One run at a time across all app
+ * instances (a PostgreSQL session advisory lock); every run is recorded in task_runs.
+ */
+export async function runBilling(opts: BillingRunOptions = {}) {
+  const locked = await withSessionLock(BILLING_TASK, () => billingRun(opts))
+  return locked.skipped ? { skipped: true as const } : { skipped: false as const, ...locked.value }
+}
+
+async function billingRun(opts: BillingRunOptions) {
+  const db = useDb()
+  const now = opts.now ?? new Date()
+  // We hold the lock: a run still marked running was killed.
+  await db.update(taskRuns).set({ status: 'crashed', finishedAt: now }).where(and(eq(taskRuns.name, BILLING_TASK), eq(taskRuns.status, 'running')))
+  const [run] = await db.insert(taskRuns).values({ name: BILLING_TASK, status: 'running', startedAt: now, companyId: opts.companyId ?? null }).returning({ id: taskRuns.id })
+  const summary: BillingRunSummary = { renewed: 0, ended: 0, invoicesRaised: 0, providerSynced: 0, providerFailed: 0, reminders: 0 }
+  const errors: Array<{ companyId: string, subject: string, message: string }> = []
+  let currentCompany = ''
+  let units = 0
+  const unit = async <T>(subject: string, fn: () => Promise<T>): Promise<T | undefined> => {
+    try {
+      const r = await fn()
+      units++
+      opts.onUnit?.(units)
+      return r
+    }
+    catch (err) {
+      errors.push({ companyId: currentCompany, subject, message: err instanceof Error ? err.message : String(err) })
+      return undefined
+    }
+  }
+
+  const companyRows = await db.select({ id: companies.id, timeZone: companies.timeZone }).from(companies)
+    .where(opts.companyId ? eq(companies.id, opts.companyId) : undefined).orderBy(asc(companies.id))
+  for (const company of companyRows) {
+    currentCompany = company.id
+    const today = opts.today ?? localToday(company.timeZone, now)
+    const clock = { now: opts.today ? new Date(`${today}T12:00:00Z`) : now }
+
+    // 1. Renew auto-renewing terms whose next term starts within the lead time.
+    const renewable = await db.select({ id: contracts.id }).from(contracts)
+      .where(and(eq(contracts.companyId, company.id), eq(contracts.status, 'active'), eq(contracts.autoRenew, true),
+        lte(contracts.termEnd, addDays(today, RENEWAL_LEAD_DAYS - 1)),
+        notExists(db.select({ x: sql`1` }).from(sql`contracts as next`).where(sql`next.previous_contract_id = ${contracts.id}`))))
+      .orderBy(asc(contracts.termEnd), asc(contracts.id))
+    for (const c of renewable) {
+      const r = await unit(`contract ${c.id}`, () => db.transaction(tx => renewInTx(tx, c.id, { actorUserId: null, ip: null, clock })))
+      if (r) summary.renewed++
+    }
+
+    // 2. End terms that are over (renewed or not).
+    await unit(`company ${company.id} terms`, async () => {
+      const ended = await db.transaction(async (tx) => {
+        const rows = await tx.update(contracts).set({ status: 'ended', endedAt: now, statusReason: 'Term ended' })
+          .where(and(eq(contracts.companyId, company.id), inArray(contracts.status, ['active', 'paused']), lt(contracts.termEnd, today)))
+          .returning({ id: contracts.id })
+        for (const r of rows) await recordAudit(tx, { action: 'contract.term_ended', companyId: company.id, subjectType: 'contract', subjectId: r.id })
+        return rows.length
+      })
+      summary.ended += ended
+    })
+
+    // 3. Raise what is due: one transaction per invoice makes, numbers, opens and e-mails it.
+    const raise = async (n: NewInvoice) => {
+      const id = await unit(n.billingKey!, () => db.transaction(async (tx) => {
+        const created = await insertDraft(tx, n)
+        if (!created) return null
+        await finalizeInTx(tx, created, today)
+        await sendInTx(tx, created, `invoice:${created}:sent`)
+        await recordAudit(tx, { action: 'invoice.raised', companyId: n.companyId, subjectType: 'invoice', subjectId: created, detail: { billingKey: n.billingKey } })
+        return created
+      }))
+      if (id) summary.invoicesRaised++
+    }
+    const priced = await db.select({
+      id: contracts.id, customerId: contracts.customerId, currency: contracts.currency, termStart: contracts.termStart, termEnd: contracts.termEnd,
+      cadence: plans.billingCadence, planName: plans.name, priceMinor: sql<number>`coalesce(${contracts.priceOverrideMinor}, ${plans.priceMinor})`,
+    }).from(contracts).innerJoin(plans, eq(plans.id, contracts.planId))
+      .where(and(eq(contracts.companyId, company.id), eq(contracts.status, 'active'), inArray(plans.billingCadence, ['yearly', 'monthly']),
+        lte(contracts.termStart, addDays(today, TERM_INVOICE_LEAD_DAYS))))
+      .orderBy(asc(contracts.termStart), asc(contracts.id))
+    const keyed = priced.length
+      ? new Set((await db.select({ key: invoices.billingKey }).from(invoices).where(and(eq(invoices.companyId, company.id), inArray(invoices.contractId, priced.map(p => p.id))))).map(r => r.key))
+      : new Set<string | null>()
+    for (const c of priced) {
+      const base = { companyId: company.id, customerId: c.customerId, contractId: c.id, currency: c.currency }
+      if (c.cadence === 'yearly') {
+        const billingKey = `term:${c.id}`
+        if (keyed.has(billingKey)) continue
+        await raise({ ...base, source: 'contract_term', billingKey, periodStart: c.termStart, periodEnd: c.termEnd,
+          lines: [{ kind: 'plan', description: `${c.planName}, ${fmtDate(c.termStart)} – ${fmtDate(c.termEnd)}`, quantity: 1, unitPriceMinor: c.priceMinor, taxable: true }] })
+        continue
+      }
+      for (const p of monthlyPeriods(c.termStart, c.termEnd)) {
+        if (p.start > today) break
+        const billingKey = `month:${c.id}:${p.start}`
+        if (keyed.has(billingKey)) continue
+        await raise({ ...base, source: 'contract_month', billingKey, periodStart: p.start, periodEnd: p.end,
+          lines: [{ kind: 'plan', description: `${c.planName}, ${fmtDate(p.start)} – ${fmtDate(p.end)}`, quantity: 1, unitPriceMinor: c.priceMinor, taxable: true }] })
+      }
+    }
+    const finishedVisits = await db.select({
+      id: visits.id, customerId: visits.customerId, contractId: visits.contractId, currency: contracts.currency, scheduledOn: visits.scheduledOn, visitType: visits.visitType,
+      planName: plans.name, priceMinor: sql<number>`coalesce(${contracts.priceOverrideMinor}, ${plans.priceMinor})`,
+    }).from(visits).innerJoin(contracts, eq(contracts.id, visits.contractId)).innerJoin(plans, eq(plans.id, contracts.planId))
+      .where(and(eq(visits.companyId, company.id), eq(visits.status, 'done'), eq(plans.billingCadence, 'per_visit'),
+        notExists(db.select({ x: sql`1` }).from(invoices).where(and(eq(invoices.companyId, company.id), eq(invoices.billingKey, sql`'visit:' || ${visits.id}`))))))
+      .orderBy(asc(visits.scheduledOn), asc(visits.id))
+    for (const v of finishedVisits) {
+      await raise({ companyId: company.id, customerId: v.customerId, contractId: v.contractId, visitId: v.id, currency: v.currency, source: 'visit', billingKey: `visit:${v.id}`,
+        periodStart: v.scheduledOn, periodEnd: v.scheduledOn,
+        lines: [{ kind: 'visit', description: `${VISIT_TYPE_LABELS[v.visitType]} on ${fmtDate(v.scheduledOn)} (${v.planName})`, quantity: 1, unitPriceMinor: v.priceMinor, taxable: true }] })
+    }
+
+    // 4. The provider's copies of open invoices that do not have one yet (or whose last try failed).
+    if (paymentsConfigured()) {
+      const unsynced = await db.select({ id: invoices.id }).from(invoices)
+        .where(and(eq(invoices.companyId, company.id), eq(invoices.status, 'open'), isNull(invoices.providerSyncedAt))).orderBy(asc(invoices.numberYear), asc(invoices.numberSeq))
+      for (const inv of unsynced) {
+        const r = await syncInvoiceToProvider(inv.id)
+        if (r.ok) {
+          summary.providerSynced++
+          units++
+          opts.onUnit?.(units)
+        }
+        else {
+          summary.providerFailed++
+          errors.push({ companyId: company.id, subject: `invoice ${inv.id}`, message: `payment provider: ${r.error}` })
+        }
+      }
+    }
+
+    // 5. Overdue reminders: the highest stage reached, once (a missed day does not send two at once).
+    const firstReminder = addDays(today, -REMINDER_DAYS[0])
+    const overdueRows = await db.select({ id: invoices.id, dueDate: invoices.dueDate, stage: invoices.reminderStage }).from(invoices)
+      .where(and(eq(invoices.companyId, company.id), eq(invoices.status, 'open'), lte(invoices.dueDate, firstReminder), lt(invoices.reminderStage, REMINDER_DAYS.length)))
+      .orderBy(asc(invoices.dueDate), asc(invoices.id))
+    for (const r of overdueRows) {
+      const days = daysBetween(r.dueDate!, today)
+      const stage = reminderStageFor(days)
+      if (stage <= r.stage) continue
+      const sent = await unit(`invoice ${r.id} reminder`, () => db.transaction(async (tx: Tx) => {
+        const [moved] = await tx.update(invoices).set({ reminderStage: stage }).where(and(eq(invoices.id, r.id), lt(invoices.reminderStage, stage), eq(invoices.status, 'open'))).returning({ id: invoices.id })
+        if (!moved) return false
+        await queueInvoiceMail(tx, r.id, 'reminder', `invoice:${r.id}:reminder:${stage}`, { daysOverdue: days })
+        await recordAudit(tx, { action: 'invoice.reminder', companyId: company.id, subjectType: 'invoice', subjectId: r.id, detail: { stage, daysOverdue: days } })
+        return true
+      }))
+      if (sent) summary.reminders++
+    }
+  }
+
+  await db.update(taskRuns).set({ status: errors.length ? 'done_with_errors' : 'done', finishedAt: new Date(), summary: { ...summary }, errors: errors.slice(0, 200), processed: units })
+    .where(eq(taskRuns.id, run!.id))
+  return { runId: run!.id, ...summary, errors }
+}
+
+/** The last runs of the billing job that covered the company, with only that company's errors. */
+export async function lastBillingRuns(companyId: string, limit = 5) {
+  const rows = await useDb().select().from(taskRuns)
+    .where(and(eq(taskRuns.name, BILLING_TASK), or(isNull(taskRuns.companyId), eq(taskRuns.companyId, companyId))))
+    .orderBy(sql`${taskRuns.startedAt} desc`).limit(limit)
+  return rows.map(r => ({ id: r.id, startedAt: r.startedAt, finishedAt: r.finishedAt, status: r.status, summary: r.summary, errors: r.errors.filter(e => e.companyId === companyId).map(({ subject, message }) => ({ subject, message })) }))
+}
+

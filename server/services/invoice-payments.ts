@@ -1,0 +1,181 @@
+import { and, asc, eq, inArray } from 'drizzle-orm'
+import { customerContacts, customers, invoiceLines, invoices, paymentEvents } from '../db/schema'
+import { formatTaxRate } from '../../shared/utils/billing'
+import type { SessionUser } from '../utils/auth'
+import { useDb, type Tx } from '../utils/db'
+import { httpError } from '../utils/errors'
+import { paymentsConfigured, publicAppUrl, usePayments, type Stripe } from '../utils/payments'
+import { recordAudit } from './audit'
+import { loadInvoice, queueInvoiceMail } from './invoices'
+
+type InvoiceRow = typeof invoices.$inferSelect
+
+/** Every provider call carries a key made from our own ids, so a retried step never acts twice. */
+const key = (...parts: string[]) => `rillbook-${parts.join('-')}`
+const unix = (d: string) => Math.floor(new Date(`${d}T23:59:59Z`).getTime() / 1000)
+
+function describe(err: unknown) {
+  return err instanceof Error ? err.message : String(err)
+}
+
+/**
+ * Makes the provider's copy of an open invoice: its customer (once per customer), the invoice with
+ * its lines and the tax as one more line, finalized there so it has a hosted payment page. Each
+ * step is saved as soon as it is done and each call has an idempotency key, so a run killed half
+ * way picks up where it stopped without making anything twice. A failure is written on the
+ * invoice (`providerError`) and returned; the billing task tries again on its next run.
+ */
+export async function syncInvoiceToProvider(invoiceId: string): Promise<{ ok: true, url: string | null } | { ok: false, error: string }> {
+  const db = useDb()
+  const [inv] = await db.select().from(invoices).where(eq(invoices.id, invoiceId)).limit(1)
+  if (!inv || inv.status !== 'open') return { ok: true, url: inv?.providerHostedUrl ?? null }
+  if (inv.providerSyncedAt) return { ok: true, url: inv.providerHostedUrl }
+  if (!paymentsConfigured()) return { ok: false, error: 'Online payments are not configured' }
+  try {
+    const stripe = usePayments()
+    const [cu] = await db.select().from(customers).where(eq(customers.id, inv.customerId)).limit(1)
+    let customerRef = cu!.paymentCustomerId
+    if (!customerRef) {
+      const [contact] = await db.select({ email: customerContacts.email }).from(customerContacts)
+        .where(and(eq(customerContacts.customerId, cu!.id), eq(customerContacts.getsInvoices, true))).orderBy(asc(customerContacts.position)).limit(1)
+      const made = await stripe.customers.create({ name: cu!.name, email: contact?.email ?? undefined, metadata: { rillbook_customer_id: cu!.id } }, { idempotencyKey: key('customer', cu!.id) })
+      customerRef = made.id
+      await db.update(customers).set({ paymentCustomerId: customerRef }).where(eq(customers.id, cu!.id))
+    }
+    let ref = inv.providerInvoiceId
+    if (!ref) {
+      const made = await stripe.invoices.create({
+        customer: customerRef, collection_method: 'send_invoice', due_date: unix(inv.dueDate!), currency: inv.currency.toLowerCase(),
+        auto_advance: false, description: `Invoice ${inv.number}`,
+        metadata: { rillbook_invoice_id: inv.id, rillbook_number: inv.number!, return_url: `${publicAppUrl()}/portal/invoices/${inv.id}?paid=1` },
+      }, { idempotencyKey: key('invoice', inv.id) })
+      ref = made.id
+      await db.update(invoices).set({ providerInvoiceId: ref }).where(eq(invoices.id, inv.id))
+    }
+    let remote = await stripe.invoices.retrieve(ref)
+    if (remote.status === 'draft') {
+      const lines = await db.select().from(invoiceLines).where(eq(invoiceLines.invoiceId, inv.id)).orderBy(asc(invoiceLines.position))
+      for (const l of lines) {
+        await stripe.invoiceItems.create({ customer: customerRef, invoice: ref, amount: l.amountMinor, currency: inv.currency.toLowerCase(), description: l.quantity === 1 ? l.description : `${l.description} (× ${l.quantity})` }, { idempotencyKey: key('line', l.id) })
+      }
+      if (inv.taxMinor !== 0) {
+        await stripe.invoiceItems.create({ customer: customerRef, invoice: ref, amount: inv.taxMinor, currency: inv.currency.toLowerCase(), description: `Sales tax (${formatTaxRate(inv.taxRateBasisPoints)})` }, { idempotencyKey: key('tax', inv.id) })
+      }
+      remote = await stripe.invoices.finalizeInvoice(ref, {}, { idempotencyKey: key('finalize', inv.id) })
+    }
+    if (remote.amount_due !== inv.totalMinor - inv.amountPaidMinor && remote.status === 'open') {
+      throw new Error(`The provider's copy asks for ${remote.amount_due} but the invoice is for ${inv.totalMinor - inv.amountPaidMinor}`)
+    }
+    await db.update(invoices).set({ providerHostedUrl: remote.hosted_invoice_url ?? null, providerSyncedAt: new Date(), providerError: null }).where(eq(invoices.id, inv.id))
+    return { ok: true, url: remote.hosted_invoice_url ?? null }
+  }
+  catch (err) {
+    const error = describe(err)
+    await db.update(invoices).set({ providerError: error.slice(0, 500) }).where(eq(invoices.id, invoiceId)).catch(() => {})
+    return { ok: false, error }
+  }
+}
+
+/**
+ * Tells the provider about a void, a write-off or a payment taken offline, so its payment page
+ * stops asking for money. Throws 503 when the provider cannot be reached (nothing is changed).
+ */
+export async function mirrorOnProvider(inv: InvoiceRow, op: 'void' | 'mark_uncollectible' | 'pay_out_of_band') {
+  if (!inv.providerInvoiceId) return
+  try {
+    const stripe = usePayments()
+    const remote = await stripe.invoices.retrieve(inv.providerInvoiceId)
+    if (remote.status === 'draft') {
+      // Never finalized there: nobody can pay it; remove the draft.
+      await stripe.invoices.del(inv.providerInvoiceId).catch(() => {})
+      await useDb().update(invoices).set({ providerInvoiceId: null }).where(eq(invoices.id, inv.id))
+      return
+    }
+    if (remote.status !== 'open') return
+    if (op === 'void') await stripe.invoices.voidInvoice(inv.providerInvoiceId, {}, { idempotencyKey: key('void', inv.id) })
+    else if (op === 'mark_uncollectible') await stripe.invoices.markUncollectible(inv.providerInvoiceId, {}, { idempotencyKey: key('uncollectible', inv.id) })
+    else await stripe.invoices.pay(inv.providerInvoiceId, { paid_out_of_band: true }, { idempotencyKey: key('paid-offline', inv.id) })
+  }
+  catch (err) {
+    throw httpError(503, `The payment service could not be reached, so nothing was changed; try again in a few minutes (${describe(err)})`)
+  }
+}
+
+/** The provider's payment page for an open invoice of the caller's (made now when it is missing). */
+export async function paymentPageUrl(actor: SessionUser, invoiceId: string) {
+  const inv = await loadInvoice(actor, invoiceId)
+  if (inv.status !== 'open') throw httpError(409, `This invoice is ${inv.status}; there is nothing to pay`)
+  const r = await syncInvoiceToProvider(inv.id)
+  if (!r.ok || !r.url) throw httpError(503, 'Online payment is not available right now; try again in a few minutes or pay by cheque or bank transfer')
+  return { url: r.url }
+}
+
+type EventOutcome = 'applied' | 'duplicate' | `ignored: ${string}`
+
+async function findInvoice(tx: Tx, obj: { id?: string, metadata?: Record<string, string> | null }) {
+  const ours = obj.metadata?.rillbook_invoice_id
+  const byRef = obj.id ? await tx.select().from(invoices).where(eq(invoices.providerInvoiceId, obj.id)).limit(1) : []
+  if (byRef[0]) return byRef[0]
+  if (ours && /^[0-9a-f-]{36}$/i.test(ours)) {
+    const [row] = await tx.select().from(invoices).where(eq(invoices.id, ours)).limit(1)
+    return row ?? null
+  }
+  return null
+}
+
+/**
+ * Applies one verified provider event, once: the event id is stored in the same transaction as
+ * its effect, so a repeat (or a concurrent duplicate) changes nothing. Events that arrive out of
+ * order cannot undo a later state: a failure after a payment is recorded and ignored.
+ */
+export async function applyPaymentEvent(event: Stripe.Event): Promise<{ outcome: EventOutcome, invoiceId: string | null }> {
+  return useDb().transaction(async (tx) => {
+    const obj = (event.data?.object ?? {}) as { object?: string, id?: string, metadata?: Record<string, string>, amount_paid?: number, status_transitions?: { paid_at?: number | null }, last_payment_error?: { message?: string } | null }
+    const [claimed] = await tx.insert(paymentEvents).values({ id: event.id, type: event.type, outcome: 'pending', payload: event as unknown as Record<string, unknown> })
+      .onConflictDoNothing().returning({ id: paymentEvents.id })
+    if (!claimed) return { outcome: 'duplicate' as const, invoiceId: null }
+    const done = async (outcome: EventOutcome, invoiceId: string | null) => {
+      await tx.update(paymentEvents).set({ outcome, invoiceId }).where(eq(paymentEvents.id, event.id))
+      return { outcome, invoiceId }
+    }
+    if (obj.object !== 'invoice') return done('ignored: not about an invoice', null)
+    const inv = await findInvoice(tx, obj)
+    if (!inv) return done('ignored: no such invoice here', null)
+    const audit = (action: string, detail: Record<string, unknown>) => recordAudit(tx, { action, companyId: inv.companyId, subjectType: 'invoice', subjectId: inv.id, detail: { eventId: event.id, ...detail } })
+    switch (event.type) {
+      case 'invoice.paid': {
+        if (inv.status === 'paid') return done('ignored: already paid', inv.id)
+        // Our own "paid offline" told to the provider: the owner's action records it, not this event.
+        if ((obj as { paid_out_of_band?: boolean }).paid_out_of_band) return done('ignored: paid offline, recorded by the owner', inv.id)
+        if (inv.status !== 'open') {
+          await audit('invoice.paid_while_closed', { status: inv.status })
+          return done(`ignored: invoice is ${inv.status}; refund or reopen it by hand`, inv.id)
+        }
+        const paidAt = obj.status_transitions?.paid_at ? new Date(obj.status_transitions.paid_at * 1000) : new Date()
+        await tx.update(invoices).set({ status: 'paid', paidAt, amountPaidMinor: inv.totalMinor, paymentMethod: 'card', lastPaymentError: null })
+          .where(and(eq(invoices.id, inv.id), eq(invoices.status, 'open')))
+        await queueInvoiceMail(tx, inv.id, 'receipt', `invoice:${inv.id}:receipt`)
+        await audit('invoice.paid_online', { amount: obj.amount_paid })
+        return done('applied', inv.id)
+      }
+      case 'invoice.payment_failed': {
+        if (inv.status !== 'open') return done(`ignored: invoice is ${inv.status}`, inv.id)
+        const message = obj.last_payment_error?.message ?? 'The payment did not go through'
+        await tx.update(invoices).set({ lastPaymentError: message }).where(eq(invoices.id, inv.id))
+        await audit('invoice.payment_failed', { message })
+        return done('applied', inv.id)
+      }
+      case 'invoice.voided':
+      case 'invoice.marked_uncollectible': {
+        if (inv.status !== 'open') return done(`ignored: invoice is ${inv.status}`, inv.id)
+        const now = new Date()
+        await tx.update(invoices).set(event.type === 'invoice.voided' ? { status: 'void', voidedAt: now } : { status: 'uncollectible', uncollectibleAt: now })
+          .where(and(eq(invoices.id, inv.id), inArray(invoices.status, ['open'])))
+        await audit(event.type === 'invoice.voided' ? 'invoice.void' : 'invoice.mark_uncollectible', { by: 'payment provider' })
+        return done('applied', inv.id)
+      }
+      default:
+        return done('ignored: not used', inv.id)
+    }
+  })
+}

@@ -1,0 +1,314 @@
+import { and, asc, count, desc, eq, ilike, inArray, lt, or, sql, type SQL } from 'drizzle-orm'
+import type { InvoiceAction, InvoiceCreateInput, InvoiceLineInput, InvoiceListQuery, InvoiceUpdateInput } from '../../shared/schemas/billing'
+import { INVOICE_STATUS_LABELS, PAYMENT_METHOD_LABELS, type InvoiceDocument, type InvoiceSource } from '../../shared/types/billing'
+import { addDays, localToday } from '../../shared/utils/recurrence'
+import { formatTaxRate, invoiceTotals } from '../../shared/utils/billing'
+import { formatMoney } from '../../shared/utils/money'
+import { companies, contracts, customerContacts, customers, invoiceCounters, invoiceLines, invoices, plans } from '../db/schema'
+import { isStaff, ownCustomerId, type SessionUser } from '../utils/auth'
+import { useDb, type Database, type Tx } from '../utils/db'
+import { httpError } from '../utils/errors'
+import { escapeHtml } from '../utils/html'
+import { containsPattern } from '../utils/like'
+import { publicAppUrl } from '../utils/payments'
+import { recordAudit } from './audit'
+import { enqueueMail } from './mail'
+
+type Db = Database | Tx
+type InvoiceRow = typeof invoices.$inferSelect
+
+/** WHERE conditions that keep a caller inside their tenancy; customers never see drafts. */
+function scope(actor: SessionUser): SQL[] {
+  const where: SQL[] = [eq(invoices.companyId, actor.companyId)]
+  const own = ownCustomerId(actor)
+  if (own) where.push(eq(invoices.customerId, own), sql`${invoices.status} <> 'draft'`)
+  return where
+}
+
+const overdue = (today: string) => and(eq(invoices.status, 'open'), lt(invoices.dueDate, today))
+
+const listColumns = {
+  id: invoices.id, number: invoices.number, status: invoices.status, source: invoices.source,
+  customerId: invoices.customerId, customerName: customers.name, contractId: invoices.contractId,
+  currency: invoices.currency, subtotalMinor: invoices.subtotalMinor, taxMinor: invoices.taxMinor, totalMinor: invoices.totalMinor,
+  amountPaidMinor: invoices.amountPaidMinor, issueDate: invoices.issueDate, dueDate: invoices.dueDate,
+  periodStart: invoices.periodStart, periodEnd: invoices.periodEnd, sentAt: invoices.sentAt, paidAt: invoices.paidAt,
+  reminderStage: invoices.reminderStage, providerError: invoices.providerError, lastPaymentError: invoices.lastPaymentError,
+}
+
+async function companyToday(companyId: string, db: Db = useDb()) {
+  const [c] = await db.select({ timeZone: companies.timeZone }).from(companies).where(eq(companies.id, companyId)).limit(1)
+  return localToday(c?.timeZone ?? 'UTC')
+}
+
+function listWhere(actor: SessionUser, q: Omit<InvoiceListQuery, 'page' | 'pageSize'>, today: string) {
+  const where = scope(actor)
+  if (q.status === 'overdue') where.push(overdue(today)!)
+  else if (q.status) where.push(eq(invoices.status, q.status))
+  if (q.customerId) where.push(eq(invoices.customerId, q.customerId))
+  if (q.contractId) where.push(eq(invoices.contractId, q.contractId))
+  if (q.from) where.push(sql`${invoices.issueDate} >= ${q.from}`)
+  if (q.to) where.push(sql`${invoices.issueDate} <= ${q.to}`)
+  if (q.q) where.push(or(ilike(customers.name, containsPattern(q.q)), ilike(invoices.number, containsPattern(q.q)))!)
+  return and(...where)
+}
+
+function listOrder(q: Pick<InvoiceListQuery, 'sort' | 'dir'>) {
+  const col = { number: invoices.number, issueDate: invoices.issueDate, dueDate: invoices.dueDate, total: invoices.totalMinor, status: invoices.status, customer: customers.name }[q.sort]
+  const dir = q.dir === 'desc' ? desc : asc
+  // Drafts have no number or dates yet: they sort last either way, newest first among themselves.
+  return [sql`${col} is null`, dir(col), desc(invoices.createdAt), asc(invoices.id)]
+}
+
+export async function listInvoices(actor: SessionUser, q: InvoiceListQuery) {
+  const db = useDb()
+  const today = await companyToday(actor.companyId)
+  const cond = listWhere(actor, q, today)
+  const [rows, [total], totals] = await Promise.all([
+    db.select(listColumns).from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId))
+      .where(cond).orderBy(...listOrder(q)).limit(q.pageSize).offset((q.page - 1) * q.pageSize),
+    db.select({ n: count() }).from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId)).where(cond),
+    // What the filtered set adds up to, per currency (a company normally has one).
+    db.select({ currency: invoices.currency, totalMinor: sql<number>`coalesce(sum(${invoices.totalMinor}), 0)::bigint`, dueMinor: sql<number>`coalesce(sum(case when ${invoices.status} = 'open' then ${invoices.totalMinor} - ${invoices.amountPaidMinor} else 0 end), 0)::bigint` })
+      .from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId)).where(cond).groupBy(invoices.currency),
+  ])
+  return {
+    rows: rows.map(r => ({ ...r, overdue: r.status === 'open' && r.dueDate != null && r.dueDate < today })),
+    total: total?.n ?? 0, page: q.page, pageSize: q.pageSize, today,
+    sums: totals.map(t => ({ currency: t.currency, totalMinor: Number(t.totalMinor), dueMinor: Number(t.dueMinor) })),
+  }
+}
+
+export const EXPORT_LIMIT = 50_000
+const EXPORT_COLUMNS = ['number', 'status', 'customer', 'issue_date', 'due_date', 'period_start', 'period_end', 'currency', 'subtotal', 'tax', 'total', 'paid', 'due', 'paid_at', 'payment_method'] as const
+
+function csvCell(v: unknown): string {
+  const s = v == null ? '' : String(v)
+  // Quote when needed; a leading = + - @ would run as a formula in a spreadsheet, so prefix it.
+  const safe = /^[=+\-@\t\r]/.test(s) ? `'${s}` : s
+  return /[",\n\r]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe
+}
+
+const decimal = (minor: number) => (minor / 100).toFixed(2)
+
+/** The filtered invoices as CSV (amounts as decimals in the invoice's currency), at most EXPORT_LIMIT rows. */
+export async function exportInvoicesCsv(actor: SessionUser, q: Omit<InvoiceListQuery, 'page' | 'pageSize'>) {
+  const today = await companyToday(actor.companyId)
+  const rows = await useDb().select({ ...listColumns, paymentMethod: invoices.paymentMethod }).from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId))
+    .where(listWhere(actor, q, today)).orderBy(...listOrder(q)).limit(EXPORT_LIMIT + 1)
+  if (rows.length > EXPORT_LIMIT) throw httpError(400, `Invalid query: more than ${EXPORT_LIMIT} invoices match; narrow the dates or the status`, { fields: { from: 'Narrow the dates' } })
+  const lines = [EXPORT_COLUMNS.join(',')]
+  for (const r of rows) {
+    lines.push([
+      r.number, r.status, r.customerName, r.issueDate, r.dueDate, r.periodStart, r.periodEnd, r.currency,
+      decimal(r.subtotalMinor), decimal(r.taxMinor), decimal(r.totalMinor), decimal(r.amountPaidMinor),
+      decimal(r.status === 'open' ? r.totalMinor - r.amountPaidMinor : 0), r.paidAt?.toISOString() ?? '', r.paymentMethod ?? '',
+    ].map(csvCell).join(','))
+  }
+  return `${lines.join('\r\n')}\r\n`
+}
+
+async function loadInvoice(actor: SessionUser, id: string, db: Db = useDb()) {
+  const [row] = await db.select().from(invoices).where(and(eq(invoices.id, id), ...scope(actor))).limit(1)
+  if (!row) throw httpError(404, 'No such invoice')
+  return row
+}
+
+/** The invoice as it is shown and printed. */
+export async function invoiceDocument(inv: InvoiceRow, db: Db = useDb()): Promise<InvoiceDocument> {
+  const [c] = await db.select().from(companies).where(eq(companies.id, inv.companyId)).limit(1)
+  const [cu] = await db.select().from(customers).where(eq(customers.id, inv.customerId)).limit(1)
+  const lines = await db.select().from(invoiceLines).where(eq(invoiceLines.invoiceId, inv.id)).orderBy(asc(invoiceLines.position))
+  const cityLine = [cu!.billingCity, [cu!.billingRegion, cu!.billingPostcode].filter(Boolean).join(' ')].filter(Boolean).join(', ')
+  const paidNote = inv.status === 'paid' && inv.paymentMethod
+    ? `${PAYMENT_METHOD_LABELS[inv.paymentMethod as keyof typeof PAYMENT_METHOD_LABELS] ?? inv.paymentMethod}${inv.paymentReference ? `, ref. ${inv.paymentReference}` : ''}`
+    : null
+  return {
+    number: inv.number, status: inv.status, currency: inv.currency, issueDate: inv.issueDate, dueDate: inv.dueDate,
+    periodStart: inv.periodStart, periodEnd: inv.periodEnd,
+    company: { name: c!.name, addressLines: c!.address.split('\n').map(s => s.trim()).filter(Boolean), email: c!.billingEmail || null },
+    customer: { name: cu!.name, addressLines: [cu!.billingLine1, cu!.billingLine2, cityLine].filter(Boolean) },
+    lines: lines.map(l => ({ description: l.description, quantity: l.quantity, unitPriceMinor: l.unitPriceMinor, amountMinor: l.amountMinor, taxable: l.taxable })),
+    subtotalMinor: inv.subtotalMinor, taxRateBasisPoints: inv.taxRateBasisPoints, taxMinor: inv.taxMinor, totalMinor: inv.totalMinor,
+    amountPaidMinor: inv.amountPaidMinor, amountDueMinor: inv.status === 'open' ? inv.totalMinor - inv.amountPaidMinor : 0,
+    paidAt: inv.paidAt?.toISOString() ?? null, paymentNote: paidNote, notes: inv.notes,
+  }
+}
+
+export async function getInvoice(actor: SessionUser, id: string) {
+  const db = useDb()
+  const inv = await loadInvoice(actor, id)
+  const document = await invoiceDocument(inv)
+  const today = await companyToday(actor.companyId)
+  const lines = await db.select({ id: invoiceLines.id, kind: invoiceLines.kind, description: invoiceLines.description, quantity: invoiceLines.quantity, unitPriceMinor: invoiceLines.unitPriceMinor, amountMinor: invoiceLines.amountMinor, taxable: invoiceLines.taxable })
+    .from(invoiceLines).where(eq(invoiceLines.invoiceId, id)).orderBy(asc(invoiceLines.position))
+  const [contract] = inv.contractId
+    ? await db.select({ id: contracts.id, planName: plans.name, termStart: contracts.termStart, termEnd: contracts.termEnd }).from(contracts).innerJoin(plans, eq(plans.id, contracts.planId)).where(eq(contracts.id, inv.contractId)).limit(1)
+    : []
+  const base = {
+    id: inv.id, number: inv.number, status: inv.status, source: inv.source, customerId: inv.customerId, customerName: document.customer.name,
+    contract: contract ?? null, currency: inv.currency, issueDate: inv.issueDate, dueDate: inv.dueDate, periodStart: inv.periodStart, periodEnd: inv.periodEnd,
+    subtotalMinor: inv.subtotalMinor, taxRateBasisPoints: inv.taxRateBasisPoints, taxMinor: inv.taxMinor, totalMinor: inv.totalMinor,
+    amountPaidMinor: inv.amountPaidMinor, amountDueMinor: document.amountDueMinor, notes: inv.notes, lines,
+    sentAt: inv.sentAt, paidAt: inv.paidAt, voidedAt: inv.voidedAt, uncollectibleAt: inv.uncollectibleAt,
+    paymentMethod: inv.paymentMethod, paymentReference: inv.paymentReference, lastPaymentError: inv.lastPaymentError,
+    overdue: inv.status === 'open' && inv.dueDate != null && inv.dueDate < today, today, document,
+  }
+  if (!isStaff(actor)) return { ...base, staff: null }
+  return { ...base, staff: { billingKey: inv.billingKey, reminderStage: inv.reminderStage, providerInvoiceId: inv.providerInvoiceId, providerSyncedAt: inv.providerSyncedAt, providerError: inv.providerError, finalizedAt: inv.finalizedAt } }
+}
+
+/** Replaces a draft's lines and recomputes its totals from them (tax rounded once; see shared/utils/billing). */
+export async function writeLines(tx: Tx, invoiceId: string, taxRateBasisPoints: number, input: readonly InvoiceLineInput[]) {
+  const totals = invoiceTotals(input, taxRateBasisPoints)
+  await tx.delete(invoiceLines).where(eq(invoiceLines.invoiceId, invoiceId))
+  await tx.insert(invoiceLines).values(input.map((l, position) => ({
+    invoiceId, position, kind: l.kind, description: l.description, quantity: l.quantity, unitPriceMinor: l.unitPriceMinor,
+    amountMinor: totals.lines[position]!.amountMinor, taxable: l.taxable,
+  })))
+  await tx.update(invoices).set({ subtotalMinor: totals.subtotalMinor, taxMinor: totals.taxMinor, totalMinor: totals.totalMinor }).where(eq(invoices.id, invoiceId))
+  return totals
+}
+
+export interface NewInvoice {
+  companyId: string
+  customerId: string
+  contractId?: string | null
+  visitId?: string | null
+  source: InvoiceSource
+  billingKey?: string | null
+  currency: string
+  periodStart?: string | null
+  periodEnd?: string | null
+  notes?: string
+  lines: InvoiceLineInput[]
+}
+
+/**
+ * Inserts a draft with its lines inside the caller's transaction. With a `billingKey` the insert
+ * is skipped when that key exists (returns null): a contract period is billed once.
+ */
+export async function insertDraft(tx: Tx, n: NewInvoice): Promise<string | null> {
+  const [c] = await tx.select({ taxRateBasisPoints: companies.taxRateBasisPoints }).from(companies).where(eq(companies.id, n.companyId)).limit(1)
+  const [row] = await tx.insert(invoices).values({
+    companyId: n.companyId, customerId: n.customerId, contractId: n.contractId ?? null, visitId: n.visitId ?? null,
+    source: n.source, billingKey: n.billingKey ?? null, currency: n.currency, taxRateBasisPoints: c!.taxRateBasisPoints,
+    periodStart: n.periodStart ?? null, periodEnd: n.periodEnd ?? null, notes: n.notes ?? '',
+  }).onConflictDoNothing({ target: [invoices.companyId, invoices.billingKey] }).returning({ id: invoices.id })
+  if (!row) return null
+  await writeLines(tx, row.id, c!.taxRateBasisPoints, n.lines)
+  return row.id
+}
+
+/**
+ * Opens a draft: takes the next number of the issue year from the company's counter (its row lock
+ * makes numbers gapless: a rolled-back finalize gives its number back), sets the issue and due
+ * dates from the payment terms. Inside the caller's transaction.
+ */
+export async function finalizeInTx(tx: Tx, invoiceId: string, today?: string) {
+  const [inv] = await tx.select().from(invoices).where(eq(invoices.id, invoiceId)).for('update').limit(1)
+  if (!inv) throw httpError(404, 'No such invoice')
+  if (inv.status !== 'draft') throw httpError(409, `This invoice is ${inv.status}; only a draft can be finalized`)
+  if (inv.totalMinor < 0) throw httpError(400, 'Invalid body: lines — the total cannot be below zero', { fields: { lines: 'The total cannot be below zero' } })
+  const [{ n }] = await tx.select({ n: count() }).from(invoiceLines).where(eq(invoiceLines.invoiceId, invoiceId)) as [{ n: number }]
+  if (n === 0) throw httpError(400, 'Invalid body: lines — an invoice needs at least one line', { fields: { lines: 'An invoice needs at least one line' } })
+  const [c] = await tx.select({ timeZone: companies.timeZone, terms: companies.paymentTermsDays }).from(companies).where(eq(companies.id, inv.companyId)).limit(1)
+  const issueDate = today ?? localToday(c!.timeZone)
+  const year = Number(issueDate.slice(0, 4))
+  const [counter] = await tx.insert(invoiceCounters).values({ companyId: inv.companyId, year, lastSeq: 1 })
+    .onConflictDoUpdate({ target: [invoiceCounters.companyId, invoiceCounters.year], set: { lastSeq: sql`${invoiceCounters.lastSeq} + 1` } })
+    .returning({ seq: invoiceCounters.lastSeq })
+  const number = `${year}-${String(counter!.seq).padStart(4, '0')}`
+  await tx.update(invoices).set({
+    status: 'open', number, numberYear: year, numberSeq: counter!.seq, issueDate, dueDate: addDays(issueDate, c!.terms), finalizedAt: new Date(),
+  }).where(eq(invoices.id, invoiceId))
+  return { number, issueDate }
+}
+
+async function invoiceRecipients(db: Db, customerId: string) {
+  const rows = await db.select({ email: customerContacts.email }).from(customerContacts)
+    .where(and(eq(customerContacts.customerId, customerId), eq(customerContacts.getsInvoices, true))).orderBy(asc(customerContacts.position))
+  return [...new Set(rows.flatMap(r => (r.email ? [r.email] : [])))]
+}
+
+const fmtDate = (d: string) => new Intl.DateTimeFormat('en-US', { month: 'long', day: 'numeric', year: 'numeric', timeZone: 'UTC' }).format(new Date(`${d}T12:00:00Z`))
+
+type MailKind = 'invoice' | 'reminder' | 'receipt'
+/** Queues an invoice e-mail (the invoice, an overdue reminder, or a receipt) inside the caller's transaction. */
+export async function queueInvoiceMail(tx: Tx, invoiceId: string, kind: MailKind, dedupeKey: string, extra: { daysOverdue?: number } = {}) {
+  const [inv] = await tx.select().from(invoices).where(eq(invoices.id, invoiceId)).limit(1)
+  if (!inv?.number) return null
+  const doc = await invoiceDocument(inv, tx)
+  const to = await invoiceRecipients(tx, inv.customerId)
+  const money = (m: number) => formatMoney(m, inv.currency)
+  const link = `${publicAppUrl()}/portal/invoices/${inv.id}`
+  const pdf = `${publicAppUrl()}/api/invoices/${inv.id}/pdf`
+  const subject = {
+    invoice: `Invoice ${inv.number} from ${doc.company.name}: ${money(doc.totalMinor)} due ${fmtDate(inv.dueDate!)}`,
+    reminder: `Reminder: invoice ${inv.number} is ${extra.daysOverdue} days overdue (${money(doc.amountDueMinor)})`,
+    receipt: `Payment received for invoice ${inv.number}, thank you`,
+  }[kind]
+  const intro = {
+    invoice: `Here is invoice ${inv.number} for ${money(doc.totalMinor)}, due on ${fmtDate(inv.dueDate!)}.`,
+    reminder: `Invoice ${inv.number} was due on ${fmtDate(inv.dueDate!)} and ${money(doc.amountDueMinor)} is still open. If you have paid it already, thank you and please ignore this reminder.`,
+    receipt: `We received your payment of ${money(inv.amountPaidMinor)} for invoice ${inv.number}${doc.paymentNote ? ` (${doc.paymentNote})` : ''}. Thank you.`,
+  }[kind]
+  const lineText = doc.lines.map(l => `  ${l.description} — ${money(l.amountMinor)}`)
+  const totalsText = [`  Subtotal ${money(doc.subtotalMinor)}`, `  Tax (${formatTaxRate(doc.taxRateBasisPoints)}) ${money(doc.taxMinor)}`, `  Total ${money(doc.totalMinor)}`]
+  const action = kind === 'receipt' ? 'See the invoice' : 'View and pay the invoice'
+  const text = [`Hello ${doc.customer.name},`, '', intro, '', ...lineText, ...totalsText, '', `${action}: ${link}`, `PDF: ${pdf}`, '', `— ${doc.company.name}`].join('\n')
+  const html = `<p>Hello ${escapeHtml(doc.customer.name)},</p><p>${escapeHtml(intro)}</p>
+<table cellpadding="4" style="border-collapse:collapse">${doc.lines.map(l => `<tr><td>${escapeHtml(l.description)}</td><td align="right">${escapeHtml(money(l.amountMinor))}</td></tr>`).join('')}
+<tr><td>Subtotal</td><td align="right">${escapeHtml(money(doc.subtotalMinor))}</td></tr>
+<tr><td>Tax (${escapeHtml(formatTaxRate(doc.taxRateBasisPoints))})</td><td align="right">${escapeHtml(money(doc.taxMinor))}</td></tr>
+<tr><td><strong>Total</strong></td><td align="right"><strong>${escapeHtml(money(doc.totalMinor))}</strong></td></tr></table>
+<p><a href="${escapeHtml(link)}">${action}</a> · <a href="${escapeHtml(pdf)}">PDF</a></p><p>— ${escapeHtml(doc.company.name)}</p>`
+  return enqueueMail(tx, { companyId: inv.companyId, dedupeKey, to, subject, html, text })
+}
+
+/** Marks an open invoice sent and queues its e-mail; `dedupeKey` keeps a retried run from sending twice. */
+export async function sendInTx(tx: Tx, invoiceId: string, dedupeKey: string) {
+  const queued = await queueInvoiceMail(tx, invoiceId, 'invoice', dedupeKey)
+  await tx.update(invoices).set({ sentAt: new Date() }).where(eq(invoices.id, invoiceId))
+  return queued
+}
+
+export async function createInvoice(actor: SessionUser, input: InvoiceCreateInput, ip: string) {
+  const db = useDb()
+  const [cu] = await db.select({ id: customers.id }).from(customers).where(and(eq(customers.id, input.customerId), eq(customers.companyId, actor.companyId))).limit(1)
+  if (!cu) throw httpError(400, 'Invalid body: customerId — no such customer', { fields: { customerId: 'No such customer' } })
+  if (input.contractId) {
+    const [ct] = await db.select({ id: contracts.id }).from(contracts).where(and(eq(contracts.id, input.contractId), eq(contracts.customerId, input.customerId), eq(contracts.companyId, actor.companyId))).limit(1)
+    if (!ct) throw httpError(400, 'Invalid body: contractId — no such contract for this customer', { fields: { contractId: 'No such contract for this customer' } })
+  }
+  const [company] = await db.select({ currency: companies.currency }).from(companies).where(eq(companies.id, actor.companyId)).limit(1)
+  const id = await db.transaction(async (tx) => {
+    const created = await insertDraft(tx, {
+      companyId: actor.companyId, customerId: input.customerId, contractId: input.contractId ?? null, source: 'manual',
+      currency: company!.currency, periodStart: input.periodStart, periodEnd: input.periodEnd, notes: input.notes, lines: input.lines,
+    })
+    await recordAudit(tx, { action: 'invoice.created', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'invoice', subjectId: created!, ip })
+    return created!
+  })
+  return getInvoice(actor, id)
+}
+
+export async function updateInvoice(actor: SessionUser, id: string, input: InvoiceUpdateInput, ip: string) {
+  await useDb().transaction(async (tx) => {
+    const [inv] = await tx.select().from(invoices).where(and(eq(invoices.id, id), ...scope(actor))).for('update').limit(1)
+    if (!inv) throw httpError(404, 'No such invoice')
+    if (inv.status !== 'draft') throw httpError(409, `This invoice is ${inv.status}; only a draft can change (void it and raise a new one)`)
+    if (input.notes !== undefined) await tx.update(invoices).set({ notes: input.notes }).where(eq(invoices.id, id))
+    if (input.lines) await writeLines(tx, id, inv.taxRateBasisPoints, input.lines)
+    await recordAudit(tx, { action: 'invoice.updated', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'invoice', subjectId: id, ip, detail: { lines: input.lines?.length } })
+  })
+  return getInvoice(actor, id)
+}
+
+/** The invoice the PDF route renders, within the caller's tenancy (drafts only for staff). */
+export async function invoiceForPdf(actor: SessionUser, id: string) {
+  const inv = await loadInvoice(actor, id)
+  return { document: await invoiceDocument(inv), fileName: `invoice-${inv.number ?? 'draft'}.pdf` }
+}
+
+export { loadInvoice, overdue, companyToday }

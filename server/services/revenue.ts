@@ -1,0 +1,57 @@
+import { and, eq, ne, sql } from 'drizzle-orm'
+import { RECEIVABLE_BUCKETS, receivableBucket, daysBetween } from '../../shared/utils/billing'
+import { localToday } from '../../shared/utils/recurrence'
+import { revenueFigures, type RevenueContract } from '../../shared/utils/revenue'
+import { companies, contracts, invoices, plans, visits } from '../db/schema'
+import { useDb } from '../utils/db'
+
+const outerContract = sql`${sql.identifier('contracts')}.${sql.identifier('id')}`
+
+/**
+ * The owner's recurring-revenue view as of a company-local date (today by default): the
+ * contract figures from shared/utils/revenue, receivables by age and invoiced revenue by plan.
+ * Only the company's own currency is counted.
+ */
+export async function revenueView(companyId: string, asOfDate?: string) {
+  const db = useDb()
+  const [company] = await db.select({ currency: companies.currency, timeZone: companies.timeZone }).from(companies).where(eq(companies.id, companyId)).limit(1)
+  const tz = company!.timeZone
+  const asOf = asOfDate ?? localToday(tz)
+  const rows = await db.select({
+    id: contracts.id, customerId: contracts.customerId, planId: contracts.planId, planName: plans.name, cadence: plans.billingCadence,
+    priceMinor: sql<number>`coalesce(${contracts.priceOverrideMinor}, ${plans.priceMinor})`, termMonths: plans.termMonths,
+    plannedVisits: sql<number>`case when ${plans.billingCadence} = 'per_visit' then (select count(*)::int from ${visits} v where v.contract_id = ${outerContract} and v.status <> 'cancelled') else 0 end`,
+    status: contracts.status, termStart: contracts.termStart, termEnd: contracts.termEnd,
+    endedOn: sql<string | null>`to_char(${contracts.endedAt} at time zone ${tz}, 'YYYY-MM-DD')`,
+    previousContractId: contracts.previousContractId, autoRenew: contracts.autoRenew,
+  }).from(contracts).innerJoin(plans, eq(plans.id, contracts.planId))
+    .where(and(eq(contracts.companyId, companyId), ne(contracts.status, 'draft'), eq(contracts.currency, company!.currency)))
+  const list: RevenueContract[] = rows.map(r => ({ ...r, priceMinor: Number(r.priceMinor), plannedVisits: Number(r.plannedVisits) }))
+  const figures = revenueFigures(list, asOf, new Map(rows.map(r => [r.id, r.autoRenew])))
+
+  // Receivables: what open invoices still ask for, by days past their due date.
+  const open = await db.select({ dueDate: invoices.dueDate, due: sql<number>`(${invoices.totalMinor} - ${invoices.amountPaidMinor})::int` })
+    .from(invoices).where(and(eq(invoices.companyId, companyId), eq(invoices.status, 'open'), eq(invoices.currency, company!.currency)))
+  const buckets = new Map(RECEIVABLE_BUCKETS.map(b => [b, { bucket: b, count: 0, amountMinor: 0 }]))
+  for (const r of open) {
+    const b = buckets.get(receivableBucket(r.dueDate ? daysBetween(r.dueDate, asOf) : 0))!
+    b.count++
+    b.amountMinor += Number(r.due)
+  }
+
+  // Invoiced (before tax, not void) over the last 12 months, by the contract's plan.
+  const since = sql`(${asOf}::date - interval '12 months')::date`
+  const invoiced = await db.select({ planId: plans.id, planName: plans.name, subtotalMinor: sql<number>`sum(${invoices.subtotalMinor})::bigint`, paidMinor: sql<number>`sum(case when ${invoices.status} = 'paid' then ${invoices.subtotalMinor} else 0 end)::bigint` })
+    .from(invoices).innerJoin(contracts, eq(contracts.id, invoices.contractId)).innerJoin(plans, eq(plans.id, contracts.planId))
+    .where(and(eq(invoices.companyId, companyId), sql`${invoices.status} in ('open', 'paid')`, eq(invoices.currency, company!.currency), sql`${invoices.issueDate} > ${since}`, sql`${invoices.issueDate} <= ${asOf}`))
+    .groupBy(plans.id, plans.name)
+  const invoicedByPlan = new Map(invoiced.map(r => [r.planId, r]))
+  const planIds = new Set([...figures.byPlan.map(p => p.planId), ...invoicedByPlan.keys()])
+  const byPlan = [...planIds].map((planId) => {
+    const live = figures.byPlan.find(p => p.planId === planId)
+    const inv = invoicedByPlan.get(planId)
+    return { planId, planName: live?.planName ?? inv!.planName, contracts: live?.contracts ?? 0, mrrMinor: live?.mrrMinor ?? 0, invoicedMinor: Number(inv?.subtotalMinor ?? 0), paidMinor: Number(inv?.paidMinor ?? 0) }
+  }).sort((a, b) => b.mrrMinor - a.mrrMinor || b.invoicedMinor - a.invoicedMinor)
+
+  return { currency: company!.currency, ...figures, byPlan, receivables: [...buckets.values()], receivablesTotalMinor: [...buckets.values()].reduce((s, b) => s + b.amountMinor, 0) }
+}

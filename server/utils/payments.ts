@@ -1,0 +1,48 @@
+import Stripe from 'stripe'
+
+/**
+ * The only place that talks to the payment provider, through its official SDK.
+ *
+ * STRIPE_SECRET_KEY — the account's secret key. STRIPE_WEBHOOK_SECRET — the signing secret of the
+ * webhook endpoint (POST /api/webhooks/payments). STRIPE_API_URL — set only to point the SDK at
+ * another server, e.g. http://127.0.0.1:12111 for the local payment fake that `npm start` and the
+ * tests run; leave it unset for the real service.
+ */
+let client: Stripe | undefined
+
+export class PaymentsNotConfiguredError extends Error {}
+
+export function paymentsConfigured(): boolean {
+  return Boolean(process.env.STRIPE_SECRET_KEY)
+}
+
+export function usePayments(): Stripe {
+  if (client) return client
+  const key = process.env.STRIPE_SECRET_KEY
+  if (!key) throw new PaymentsNotConfiguredError('Online payments are not configured (STRIPE_SECRET_KEY)')
+  const override = process.env.STRIPE_API_URL ? new URL(process.env.STRIPE_API_URL) : null
+  client = new Stripe(key, {
+    telemetry: false,
+    // Retries would hide an outage from the caller; the billing task retries on its next run.
+    maxNetworkRetries: 0,
+    timeout: 15_000,
+    ...(override
+      ? { host: override.hostname, port: Number(override.port || (override.protocol === 'https:' ? 443 : 80)), protocol: override.protocol.replace(':', '') as 'http' | 'https' }
+      : {}),
+  })
+  return client
+}
+
+/** Verifies a webhook delivery's signature and parses it; throws when the signature does not match. */
+export function verifyWebhook(payload: string, signature: string): Stripe.Event {
+  const secret = process.env.STRIPE_WEBHOOK_SECRET
+  if (!secret) throw new PaymentsNotConfiguredError('The webhook signing secret is not configured (STRIPE_WEBHOOK_SECRET)')
+  return Stripe.webhooks.constructEvent(payload, signature, secret)
+}
+
+/** The app's public address, for links in e-mails and the return link from the payment page. */
+export function publicAppUrl(): string {
+  return (process.env.RILLBOOK_PUBLIC_URL || process.env.AUTH_ORIGIN || `http://127.0.0.1:${process.env.PORT || process.env.NITRO_PORT || 3000}`).replace(/\/$/, '')
+}
+
+export type { Stripe }

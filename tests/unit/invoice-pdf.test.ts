@@ -1,0 +1,230 @@
+import { describe, expect, it } from 'vitest'
+import { renderInvoicePdf } from '../../server/utils/invoice-pdf'
+import type { InvoiceDocument } from '../../shared/types/billing'
+
+// ——— A small reader for the PDFs pdfkit writes uncompressed ———
+// Text is drawn as glyph codes (embedded fonts: 4-hex-digit glyph ids mapped back through the
+// font's ToUnicode CMap; built-in fonts: WinAnsi bytes), one BT … ET block per line of text.
+
+interface Fragment { x: number, y: number, size: number, font: string, text: string }
+
+const WIN_ANSI: Record<number, string> = { 0x91: '‘', 0x92: '’', 0x93: '“', 0x94: '”', 0x95: '•', 0x96: '–', 0x97: '—', 0x80: '€' }
+
+function readPages(pdf: Buffer): Fragment[][] {
+  const s = pdf.toString('latin1')
+  const objects = new Map<number, string>()
+  for (const m of s.matchAll(/(\d+) 0 obj\n([\s\S]*?)\nendobj/g)) objects.set(Number(m[1]), m[2]!)
+  const stream = (body: string) => /stream\n([\s\S]*?)\nendstream/.exec(body)?.[1] ?? ''
+  const ref = (body: string, key: string) => Number(new RegExp(`/${key} (\\d+) 0 R`).exec(body)?.[1])
+  const pagesObject = [...objects.values()].find(b => /\/Type \/Pages\b/.test(b))!
+  const kids = [.../\/Kids \[([^\]]*)\]/.exec(pagesObject)![1]!.matchAll(/(\d+) 0 R/g)].map(m => Number(m[1]))
+  return kids.map((pageId) => {
+    const page = objects.get(pageId)!
+    const resources = objects.get(ref(page, 'Resources'))!
+    const fonts = new Map<string, { name: string, decode: (hex: string) => string }>()
+    for (const m of (/\/Font <<([\s\S]*?)>>/.exec(resources)?.[1] ?? '').matchAll(/\/(F\d+) (\d+) 0 R/g)) {
+      const font = objects.get(Number(m[2]))!
+      const name = /\/BaseFont \/(\S+)/.exec(font)![1]!
+      const toUnicode = ref(font, 'ToUnicode')
+      if (Number.isNaN(toUnicode)) {
+        fonts.set(m[1]!, { name, decode: hex => (hex.match(/../g) ?? []).map((h) => { const c = Number.parseInt(h, 16); return WIN_ANSI[c] ?? String.fromCharCode(c) }).join('') })
+        continue
+      }
+      const glyphs = new Map<number, string>()
+      for (const r of stream(objects.get(toUnicode)!).matchAll(/<([0-9a-f]{4})> <[0-9a-f]{4}> \[([^\]]*)\]/g)) {
+        const start = Number.parseInt(r[1]!, 16)
+        ;[...r[2]!.matchAll(/<([0-9a-f ]+)>/g)].forEach((e, i) => glyphs.set(start + i, String.fromCharCode(...e[1]!.split(' ').map(h => Number.parseInt(h, 16)))))
+      }
+      fonts.set(m[1]!, { name, decode: hex => (hex.match(/.{4}/g) ?? []).map(h => glyphs.get(Number.parseInt(h, 16)) ?? '\uFFFD').join('') })
+    }
+    const out: Fragment[] = []
+    for (const bt of stream(objects.get(ref(page, 'Contents'))!).matchAll(/BT\n([\s\S]*?)\nET/g)) {
+      const tm = /1 0 0 1 (\S+) (\S+) Tm/.exec(bt[1]!)!
+      const tf = /\/(F\d+) (\S+) Tf/.exec(bt[1]!)!
+      const font = fonts.get(tf[1]!)!
+      const hex = [...bt[1]!.matchAll(/<([0-9a-f]*)>/g)].map(h => h[1]).join('')
+      // y from the top of the page, at the baseline.
+      out.push({ x: Number(tm[1]), y: 792 - Number(tm[2]), size: Number(tf[2]), font: font.name, text: font.decode(hex) })
+    }
+    return out
+  })
+}
+
+/** A literal string of the info dictionary; pdfkit writes each value as its own (never compressed) object. */
+function infoEntry(pdf: Buffer, key: string): string | undefined {
+  const s = pdf.toString('latin1')
+  const object = (id: string | undefined) => id ? new RegExp(`(?:^|\\n)${id} 0 obj\\n([\\s\\S]*?)\\nendobj`).exec(s)?.[1] : undefined
+  const info = object(/\/Info (\d+) 0 R/.exec(s.slice(s.lastIndexOf('trailer')))?.[1])
+  const value = object(new RegExp(`/${key} (\\d+) 0 R`).exec(info ?? '')?.[1])
+  return value?.match(/^\((.*)\)$/s)?.[1]?.replace(/\\([\\()])/g, '$1')
+}
+
+const pageText = (page: Fragment[]) => page.map(f => f.text).join('\n')
+const pageCount = (pdf: Buffer) => pdf.toString('latin1').match(/\/Type \/Page\b/g)?.length ?? 0
+
+// ——— Invented sample data ———
+
+function sample(over: Partial<InvoiceDocument> = {}): InvoiceDocument {
+  return {
+    number: '2026-0007',
+    status: 'open',
+    currency: 'USD',
+    issueDate: '2026-12-02',
+    dueDate: '2027-01-01',
+    periodStart: '2027-01-01',
+    periodEnd: '2027-12-31',
+    company: { name: 'Heronmere Water Gardens', addressLines: ['14 Reedbank Lane', 'Millbrook, OR 97000'], email: 'office@heronmere.example' },
+    customer: { name: 'Whitcombe household', addressLines: ['3 Alder Close', 'Millbrook, OR 97001'] },
+    lines: [
+      { description: 'Seasonal Care — 2027 term', quantity: 1, unitPriceMinor: 145000, amountMinor: 145000, taxable: true },
+      { description: 'Pump impeller (part)', quantity: 2, unitPriceMinor: 3850, amountMinor: 7700, taxable: true },
+      { description: 'Dechlorinator treatment', quantity: 1.5, unitPriceMinor: 1800, amountMinor: 2700, taxable: false },
+    ],
+    subtotalMinor: 155400,
+    taxRateBasisPoints: 725,
+    taxMinor: 11071,
+    totalMinor: 166471,
+    amountPaidMinor: 0,
+    amountDueMinor: 166471,
+    paidAt: null,
+    paymentNote: null,
+    notes: 'Thank you for keeping the pond with us for another year.',
+    ...over,
+  }
+}
+
+function manyLines(n: number): InvoiceDocument['lines'] {
+  return Array.from({ length: n }, (_, i) => ({
+    description: i % 7 === 0
+      ? `Visit ${i + 1}: filter rinse, skimmer basket, marginal shelf trim and a water test with the readings left on the card by the pump housing`
+      : `Visit ${i + 1}: routine care`,
+    quantity: 1,
+    unitPriceMinor: 6500,
+    amountMinor: 6500,
+    taxable: i % 3 !== 0,
+  }))
+}
+
+describe('invoice PDF', () => {
+  it('renders a well-formed, compressed PDF with the invoice metadata', async () => {
+    const pdf = await renderInvoicePdf(sample())
+    const text = pdf.toString('latin1')
+    expect(text.startsWith('%PDF-')).toBe(true)
+    expect(text).toMatch(/%%EOF\s*$/)
+    expect(pdf.length).toBeGreaterThan(5_000)
+    expect(pdf.length).toBeLessThan(150_000)
+    expect(infoEntry(pdf, 'Title')).toBe('Invoice 2026-0007')
+    expect(infoEntry(pdf, 'Author')).toBe('Heronmere Water Gardens')
+    expect(text).toContain('/Filter /FlateDecode')
+    expect(pageCount(pdf)).toBe(1)
+  })
+
+  it('lays out the header, bill-to, lines and totals in Work Sans', async () => {
+    const pdf = await renderInvoicePdf(sample(), { compress: false })
+    const raw = pdf.toString('latin1')
+    expect(raw).not.toContain('/Filter /FlateDecode')
+    expect(raw).toMatch(/\/BaseFont \/[A-Z]{6}\+WorkSans-Regular/)
+    expect(raw).toMatch(/\/BaseFont \/[A-Z]{6}\+WorkSans-SemiBold/)
+    expect(raw).not.toContain('Helvetica')
+
+    const [page] = readPages(pdf)
+    const text = pageText(page!)
+    for (const s of [
+      'Heronmere Water Gardens', '14 Reedbank Lane', 'office@heronmere.example', 'Invoice', '2026-0007', 'Open',
+      'Dec 2, 2026', 'Jan 1, 2027', 'Jan 1, 2027 – Dec 31, 2027', 'Bill to', 'Whitcombe household', '3 Alder Close',
+      'Description', 'Qty', 'Unit price', 'Amount', 'Seasonal Care — 2027 term', 'Pump impeller (part)',
+      'Dechlorinator treatment', '1.5', '$38.50', '$77.00', 'Subtotal', '$1,554.00', 'Tax (7.25 %)', '$110.71',
+      'Total', 'Amount due', '$1,664.71', 'Notes', 'Page 1 of 1',
+    ]) expect(text).toContain(s)
+    // Exactly one "no tax" note, under the non-taxable line; nothing paid, so no Paid row.
+    expect(page!.filter(f => f.text === 'no tax')).toHaveLength(1)
+    expect(text).not.toMatch(/^Paid/m)
+    // Numbers are right-aligned to the right margin (612 − 50).
+    const amount = page!.find(f => f.text === '$1,664.71' && f.size === 12)!
+    expect(amount.font).toMatch(/SemiBold/)
+    expect(amount.x).toBeGreaterThan(480)
+    // Everything but the footer sits inside the 50 pt margins.
+    for (const f of page!.filter(f => !/^Page \d/.test(f.text) && !f.text.startsWith('Heronmere Water Gardens ·'))) {
+      expect(f.x).toBeGreaterThanOrEqual(50)
+      expect(f.y).toBeGreaterThan(50)
+      expect(f.y).toBeLessThan(742)
+    }
+  })
+
+  it('breaks long invoices across pages, repeating the table header and numbering every page', async () => {
+    const lines = manyLines(80)
+    const total = lines.reduce((s, l) => s + l.amountMinor, 0)
+    const pdf = await renderInvoicePdf(sample({ lines, subtotalMinor: total, taxMinor: 0, totalMinor: total, amountDueMinor: total }), { compress: false })
+    const pages = readPages(pdf)
+    const n = pages.length
+    expect(n).toBeGreaterThanOrEqual(2)
+    expect(pageCount(pdf)).toBe(n)
+    pages.forEach((page, i) => {
+      expect(page.map(f => f.text)).toContain(`Page ${i + 1} of ${n}`)
+      if (page.some(f => /^Visit \d+:/.test(f.text))) expect(page.filter(f => f.text === 'Description')).toHaveLength(1)
+      // No line of the table runs into the footer.
+      for (const f of page.filter(f => /^Visit \d+:/.test(f.text))) expect(f.y).toBeLessThan(742)
+    })
+    // Every line made it, once, in order; the long descriptions wrapped onto more than one line.
+    const firsts = pages.flat().map(f => /^Visit (\d+):/.exec(f.text)?.[1]).filter(Boolean).map(Number)
+    expect(firsts).toEqual(Array.from({ length: 80 }, (_, i) => i + 1))
+    const all = pages.map(pageText).join('\n')
+    expect(all).toContain('pump housing')
+    expect(all).not.toContain('pump housing\nVisit 2') // the wrapped tail stays with its own line
+    expect(pages.at(-1)!.map(f => f.text)).toContain('Amount due')
+    expect(all.match(/no tax/g)).toHaveLength(27) // i % 3 === 0 for i in 0..79
+  })
+
+  it('shows paid invoices with the payment date, note and the Paid row', async () => {
+    const pdf = await renderInvoicePdf(sample({ status: 'paid', amountPaidMinor: 166471, amountDueMinor: 0, paidAt: '2026-12-10', paymentNote: 'Cheque 1042' }), { compress: false })
+    const text = pageText(readPages(pdf)[0]!)
+    expect(text).toContain('Paid\n')
+    expect(text).toContain('-$1,664.71')
+    expect(text).toContain('$0.00')
+    expect(text).toContain('Paid on Dec 10, 2026')
+    expect(text).toContain('Cheque 1042')
+  })
+
+  it('marks void invoices clearly, and drafts have no number', async () => {
+    const voided = pageText(readPages(await renderInvoicePdf(sample({ status: 'void' }), { compress: false }))[0]!)
+    expect(voided).toContain('Void')
+    expect(voided).toMatch(/^VOID — /m)
+
+    const draftPdf = await renderInvoicePdf(sample({ number: null, status: 'draft', issueDate: null, dueDate: null, periodStart: null, periodEnd: null, taxRateBasisPoints: 800 }), { compress: false })
+    expect(infoEntry(draftPdf, 'Title')).toBe('Draft invoice')
+    const draft = pageText(readPages(draftPdf)[0]!)
+    expect(draft).toContain('Invoice\nDraft')
+    expect(draft).toContain('Tax (8 %)')
+    expect(draft).not.toContain('Issue date')
+    expect(draft).not.toContain('Service period')
+  })
+
+  it('falls back to the built-in Helvetica pair, and never throws over a bad font', async () => {
+    const pdf = await renderInvoicePdf(sample(), { compress: false, fonts: null })
+    const raw = pdf.toString('latin1')
+    expect(raw).toContain('/BaseFont /Helvetica\n')
+    expect(raw).toContain('/BaseFont /Helvetica-Bold')
+    expect(raw).not.toContain('WorkSans')
+    expect(raw).not.toContain('/FontFile2')
+    const text = pageText(readPages(pdf)[0]!)
+    expect(text).toContain('Seasonal Care — 2027 term')
+    expect(text).toContain('$1,664.71')
+
+    const junk = { regular: new Uint8Array(64).fill(7), semibold: new Uint8Array(64).fill(9) }
+    const fallback = await renderInvoicePdf(sample(), { compress: false, fonts: junk })
+    expect(fallback.toString('latin1')).toContain('/BaseFont /Helvetica')
+  })
+
+  it('renders a 10-line invoice in well under 300 ms', async () => {
+    const lines = manyLines(10)
+    const doc = sample({ lines })
+    await renderInvoicePdf(doc) // fonts loaded and prepared once per process
+    const times: number[] = []
+    for (let i = 0; i < 3; i++) {
+      const t = performance.now()
+      await renderInvoicePdf(doc)
+      times.push(performance.now() - t)
+    }
+    expect(times.sort((a, b) => a - b)[1]).toBeLessThan(300)
+  })
+})
