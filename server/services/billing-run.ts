@@ -95,7 +95,8 @@ async function billingRun(opts: BillingRunOptions) {
     // 2. End terms that are over (renewed or not).
     await unit(`company ${company.id} terms`, async () => {
       const ended = await db.transaction(async (tx) => {
-        const rows = await tx.update(contracts).set({ status: 'ended', endedAt: now, statusReason: 'Term ended' })
+        // Ended at the start of the day after the term's last day, company time.
+        const rows = await tx.update(contracts).set({ status: 'ended', endedAt: sql`((${contracts.termEnd} + 1)::timestamp at time zone ${company.timeZone})`, statusReason: 'Term ended' })
           .where(and(eq(contracts.companyId, company.id), inArray(contracts.status, ['active', 'paused']), lt(contracts.termEnd, today)))
           .returning({ id: contracts.id })
         for (const r of rows) await recordAudit(tx, { action: 'contract.term_ended', companyId: company.id, subjectType: 'contract', subjectId: r.id })

@@ -87,6 +87,21 @@ const MATRIX: Record<string, Who[] | 'public'> = {
   'GET /api/range-profiles': ['owner', 'technician'],
   'PATCH /api/range-profiles/:id': ['owner'],
   'POST /api/water/evaluate': ['owner', 'technician', 'customer'],
+  // Customers read and pay only their own invoices (never drafts): checked in billing.test.ts.
+  'GET /api/invoices': ['owner', 'customer'],
+  'POST /api/invoices': ['owner'],
+  'GET /api/invoices/export.csv': ['owner'],
+  'GET /api/invoices/:id': ['owner', 'customer'],
+  'PATCH /api/invoices/:id': ['owner'],
+  'POST /api/invoices/:id/actions': ['owner'],
+  'GET /api/invoices/:id/pdf': ['owner', 'customer'],
+  'POST /api/invoices/:id/pay': ['customer'],
+  // The payment provider signs its events instead of signing in (bad signatures: billing.test.ts).
+  'POST /api/webhooks/payments': 'public',
+  // Runs the billing job for the owner's company (it writes only what is due, once).
+  'POST /api/billing/run': ['owner'],
+  'GET /api/billing/runs': ['owner'],
+  'GET /api/revenue': ['owner'],
 }
 
 const routes = listApiRoutes()
