@@ -15,7 +15,7 @@ export async function seedInvoices(tx: Tx, companyId: string, contractIds: strin
   if (!contractIds.length) return 0
   const [company] = await tx.select().from(companies).where(eq(companies.id, companyId)).limit(1)
   const today = localToday(company!.timeZone)
-  await tx.update(companies).set({ address: '41 Alderbank Road\nLarchfield, MN 55990', billingEmail: 'accounts@heronmere.example', paymentTermsDays: 30 }).where(eq(companies.id, companyId))
+  await tx.update(companies).set({ address: '41 Alderbank Road\nLarchfield, LF 54100', billingEmail: 'accounts@heronmere.example', paymentTermsDays: 30 }).where(eq(companies.id, companyId))
   const rows = await tx.select({
     id: contracts.id, customerId: contracts.customerId, currency: contracts.currency, termStart: contracts.termStart, termEnd: contracts.termEnd, status: contracts.status,
     cadence: plans.billingCadence, planName: plans.name, priceMinor: plans.priceMinor, override: contracts.priceOverrideMinor,

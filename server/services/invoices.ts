@@ -57,7 +57,7 @@ function listOrder(q: Pick<InvoiceListQuery, 'sort' | 'dir'>) {
   const col = { number: invoices.number, issueDate: invoices.issueDate, dueDate: invoices.dueDate, total: invoices.totalMinor, status: invoices.status, customer: customers.name }[q.sort]
   const dir = q.dir === 'desc' ? desc : asc
   // Drafts have no number or dates yet: they sort last either way, newest first among themselves.
-  return [sql`${col} is null`, dir(col), desc(invoices.createdAt), asc(invoices.id)]
+  return [sql`${col} is null`, dir(col), desc(invoices.numberYear), desc(invoices.numberSeq), desc(invoices.createdAt), asc(invoices.id)]
 }
 
 export async function listInvoices(actor: SessionUser, q: InvoiceListQuery) {
@@ -131,7 +131,7 @@ export async function invoiceDocument(inv: InvoiceRow, db: Db = useDb()): Promis
     lines: lines.map(l => ({ description: l.description, quantity: l.quantity, unitPriceMinor: l.unitPriceMinor, amountMinor: l.amountMinor, taxable: l.taxable })),
     subtotalMinor: inv.subtotalMinor, taxRateBasisPoints: inv.taxRateBasisPoints, taxMinor: inv.taxMinor, totalMinor: inv.totalMinor,
     amountPaidMinor: inv.amountPaidMinor, amountDueMinor: inv.status === 'open' ? inv.totalMinor - inv.amountPaidMinor : 0,
-    paidAt: inv.paidAt?.toISOString() ?? null, paymentNote: paidNote, notes: inv.notes,
+    paidAt: inv.paidAt ? localToday(c!.timeZone, inv.paidAt) : null, paymentNote: paidNote, notes: inv.notes,
   }
 }
 

@@ -43,6 +43,7 @@ export interface InvoiceDocument {
   totalMinor: number
   amountPaidMinor: number
   amountDueMinor: number
+  /** Company-local date it was paid. */
   paidAt: string | null
   paymentNote: string | null
   notes: string

@@ -123,7 +123,7 @@ describe('invoices by hand', () => {
     expect((await api('/api/invoices?sort=bogus', { token: owner })).status).toBe(400)
     expect((await api('/api/invoices?pageSize=1000', { token: owner })).status).toBe(400)
 
-    const csv = await fetch(`${baseUrl()}/api/invoices/export.csv?status=paid&sort=total&dir=desc`, { headers: { authorization: `Bearer ${owner}` } })
+    const csv = await fetch(`${baseUrl()}/api/exports/invoices.csv?status=paid&sort=total&dir=desc`, { headers: { authorization: `Bearer ${owner}` } })
     expect(csv.headers.get('content-type')).toMatch(/text\/csv/)
     const rows = (await csv.text()).trim().split('\r\n')
     expect(rows[0]).toBe('number,status,customer,issue_date,due_date,period_start,period_end,currency,subtotal,tax,total,paid,due,paid_at,payment_method')

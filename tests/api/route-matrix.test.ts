@@ -90,7 +90,7 @@ const MATRIX: Record<string, Who[] | 'public'> = {
   // Customers read and pay only their own invoices (never drafts): checked in billing.test.ts.
   'GET /api/invoices': ['owner', 'customer'],
   'POST /api/invoices': ['owner'],
-  'GET /api/invoices/export.csv': ['owner'],
+  'GET /api/exports/invoices.csv': ['owner'],
   'GET /api/invoices/:id': ['owner', 'customer'],
   'PATCH /api/invoices/:id': ['owner'],
   'POST /api/invoices/:id/actions': ['owner'],
