@@ -65,6 +65,10 @@ export default defineNuxtConfig({
   },
   nitro: {
     experimental: { tasks: true },
+    // The invoice PDF's font files are read at run time: copy them into .output with the server.
+    externals: {
+      traceInclude: ['@fontsource/work-sans/files/work-sans-latin-400-normal.woff', '@fontsource/work-sans/files/work-sans-latin-600-normal.woff'],
+    },
     scheduledTasks: {
       '* * * * *': ['mail:flush'],
       // The alert scan every ten minutes (its cost follows new readings; it runs once across instances).

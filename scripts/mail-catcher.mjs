@@ -6,9 +6,9 @@
 // Defaults come from RILLBOOK_SMTP_PORT (2525) and RILLBOOK_MAIL_DIR (.data/mail). As a command it
 // writes its pid to <dir>/catcher.pid and stops on SIGTERM/SIGINT.
 import { randomBytes } from 'node:crypto'
-import { mkdirSync, readFileSync, renameSync, unlinkSync, writeFileSync } from 'node:fs'
+import { mkdirSync } from 'node:fs'
 import { join, resolve } from 'node:path'
-import { fileURLToPath } from 'node:url'
+import { argValue, isMain, runUntilStopped, writeAtomic } from './lib/local-service.mjs'
 import { simpleParser } from 'mailparser'
 import { SMTPServer } from 'smtp-server'
 
@@ -23,13 +23,6 @@ function addressList(value) {
   if (!value) return []
   const groups = Array.isArray(value) ? value : [value]
   return groups.flatMap(g => g.value ?? []).map(a => a.address).filter(Boolean)
-}
-
-/** Writes the file under a temporary name first, so a reader never sees half a message. */
-function writeAtomic(path, text) {
-  const tmp = `${path}.tmp-${randomBytes(3).toString('hex')}`
-  writeFileSync(tmp, text)
-  renameSync(tmp, path)
 }
 
 /**
@@ -101,36 +94,15 @@ export function startMailCatcher({ port, dir, log = msg => process.stdout.write(
   })
 }
 
-function argValue(name) {
-  const i = process.argv.indexOf(name)
-  return i > -1 ? process.argv[i + 1] : undefined
-}
-
 async function main() {
   const port = Number(argValue('--port') ?? process.env.RILLBOOK_SMTP_PORT ?? 2525)
   const dir = resolve(argValue('--dir') ?? process.env.RILLBOOK_MAIL_DIR ?? '.data/mail')
   if (!Number.isInteger(port) || port < 1 || port > 65535) throw new Error(`not a port: ${port}`)
   const catcher = await startMailCatcher({ port, dir })
-  const pidFile = join(dir, 'catcher.pid')
-  writeAtomic(pidFile, String(process.pid))
-  let stopping = false
-  const stop = async () => {
-    if (stopping) return
-    stopping = true
-    try {
-      if (readFileSync(pidFile, 'utf8').trim() === String(process.pid)) unlinkSync(pidFile)
-    }
-    catch {}
-    // server.close waits for open sessions; do not hang on a client that never says QUIT.
-    setTimeout(() => process.exit(0), 2000).unref()
-    await catcher.close()
-    process.exit(0)
-  }
-  process.on('SIGTERM', stop)
-  process.on('SIGINT', stop)
+  runUntilStopped(join(dir, 'catcher.pid'), () => catcher.close())
 }
 
-if (process.argv[1] && resolve(process.argv[1]) === fileURLToPath(import.meta.url)) {
+if (isMain(import.meta.url)) {
   main().catch((err) => {
     process.stderr.write(`[mail] ${err.message}\n`)
     process.exit(1)

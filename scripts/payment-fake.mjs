@@ -14,11 +14,11 @@
 // kept in <dir>/state.json, so provider ids stay valid across restarts. As a command it writes its
 // pid to <dir>/fake.pid and stops on SIGTERM/SIGINT.
 import { createHash, createHmac, randomBytes } from 'node:crypto'
-import { existsSync, mkdirSync, readFileSync, renameSync, unlinkSync, writeFileSync } from 'node:fs'
+import { existsSync, mkdirSync, readFileSync } from 'node:fs'
 import http from 'node:http'
 import https from 'node:https'
 import { join, resolve } from 'node:path'
-import { fileURLToPath } from 'node:url'
+import { argValue, isMain, runUntilStopped, writeAtomic } from './lib/local-service.mjs'
 
 /** The API version pinned by the installed SDK (its apiVersion.js); every event carries it. */
 export const API_VERSION = '2026-10-28.endive'
@@ -35,13 +35,6 @@ function newId(prefix) {
   let s = ''
   for (const b of randomBytes(24)) s += ALNUM[b % ALNUM.length]
   return `${prefix}_${s}`
-}
-
-/** Writes the file under a temporary name first, so a reader never sees half a state. */
-function writeAtomic(path, text) {
-  const tmp = `${path}.tmp-${randomBytes(3).toString('hex')}`
-  writeFileSync(tmp, text)
-  renameSync(tmp, path)
 }
 
 function freshState() {
@@ -751,11 +744,6 @@ export async function startPaymentFake({
   }
 }
 
-function argValue(name) {
-  const i = process.argv.indexOf(name)
-  return i > -1 ? process.argv[i + 1] : undefined
-}
-
 async function main() {
   const port = Number(argValue('--port') ?? process.env.RILLBOOK_PAYMENTS_PORT ?? 12111)
   const dir = resolve(argValue('--dir') ?? process.env.RILLBOOK_PAYMENTS_DIR ?? '.data/payments')
@@ -771,25 +759,10 @@ async function main() {
     log: verbose ? msg => process.stderr.write(`${msg}\n`) : undefined,
   })
   process.stdout.write(`[payments] fake payment provider on ${fake.url} (state in ${dir})\n`)
-  const pidFile = join(dir, 'fake.pid')
-  writeAtomic(pidFile, String(process.pid))
-  let stopping = false
-  const stop = async () => {
-    if (stopping) return
-    stopping = true
-    try {
-      if (readFileSync(pidFile, 'utf8').trim() === String(process.pid)) unlinkSync(pidFile)
-    }
-    catch {}
-    setTimeout(() => process.exit(0), 2000).unref()
-    await fake.close()
-    process.exit(0)
-  }
-  process.on('SIGTERM', stop)
-  process.on('SIGINT', stop)
+  runUntilStopped(join(dir, 'fake.pid'), () => fake.close())
 }
 
-if (process.argv[1] && resolve(process.argv[1]) === fileURLToPath(import.meta.url)) {
+if (isMain(import.meta.url)) {
   main().catch((err) => {
     process.stderr.write(`[payments] ${err.message}\n`)
     process.exit(1)
