@@ -1,7 +1,7 @@
 import { and, asc, eq, gte } from 'drizzle-orm'
 import type { ClosedDaysInput, CompanyUpdateInput } from '../../shared/schemas/company'
 import { localToday } from '../../shared/utils/recurrence'
-import { closedDays, companies, contracts } from '../db/schema'
+import { closedDays, companies, contracts, users } from '../db/schema'
 import type { SessionUser } from '../utils/auth'
 import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
@@ -16,10 +16,12 @@ const columns = {
   address: companies.address, billingEmail: companies.billingEmail, paymentTermsDays: companies.paymentTermsDays,
 }
 
+/** The company's settings; `unitSystem` is the one this sign-in reads in (its own choice, else the company's). */
 export async function getCompany(actor: SessionUser) {
   const [row] = await useDb().select(columns).from(companies).where(eq(companies.id, actor.companyId)).limit(1)
   if (!row) throw httpError(404, 'No such company')
-  return row
+  const [me] = await useDb().select({ unitSystem: users.unitSystem }).from(users).where(eq(users.id, actor.id)).limit(1)
+  return { ...row, companyUnitSystem: row.unitSystem, unitSystem: me?.unitSystem ?? row.unitSystem }
 }
 
 export async function updateCompany(actor: SessionUser, input: CompanyUpdateInput, ip: string) {

@@ -2,12 +2,12 @@ import { and, eq } from 'drizzle-orm'
 import sharp, { type OutputInfo } from 'sharp'
 import { photos, visits, waterFeatures } from '../db/schema'
 import { isStaff, type SessionUser } from '../utils/auth'
-import { useDb } from '../utils/db'
+import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
+import { MAX_PHOTO_BYTES } from '../utils/photo-upload'
 import { recordAudit } from './audit'
 import { thumbKey } from './visit-report'
 
-export const MAX_PHOTO_BYTES = 15 * 1024 * 1024
 const fullKey = (id: string) => `photos/${id}/full.jpg`
 
 /** What the bytes say the file is (the name and the browser's type are not trusted). */
@@ -36,14 +36,29 @@ export async function addVisitPhoto(actor: SessionUser, visitId: string, input: 
     if (existing.visitId !== visitId) throw httpError(409, 'A photo with this id belongs to another visit')
     return existing
   }
-  if (input.data.length > MAX_PHOTO_BYTES) throw httpError(413, `Invalid body: file — photos may be at most 15 MB (this one is ${(input.data.length / 1048576).toFixed(1)} MB)`, { fields: { file: 'At most 15 MB' } })
-  const kind = sniffImageType(input.data)
-  if (kind === 'heic') throw httpError(415, 'Invalid body: file — HEIC photos cannot be converted here. Set the camera to JPEG ("most compatible") or share the photo as JPEG.', { fields: { file: 'HEIC is not supported; use JPEG' } })
-  if (!kind) throw httpError(415, 'Invalid body: file — send a JPEG, PNG or WebP photo', { fields: { file: 'Send a JPEG, PNG or WebP photo' } })
   if (input.featureId) {
     const [f] = await db.select({ id: waterFeatures.id }).from(waterFeatures).where(and(eq(waterFeatures.id, input.featureId), eq(waterFeatures.siteId, v.siteId))).limit(1)
     if (!f) throw httpError(400, 'Invalid body: featureId — not a feature of this visit', { fields: { featureId: 'Not a feature of this visit' } })
   }
+  return storePhoto(actor, { visitId, requestId: null, customerId: v.customerId, featureId: input.featureId ?? null }, input, { action: 'visit.photo_added', subjectType: 'visit', subjectId: visitId, ip })
+}
+
+/**
+ * Checks, re-encodes and stores one photo, then writes its row (and an audit entry) for a visit
+ * or a customer's request. The bytes decide the type; sharp re-encodes to JPEG without metadata
+ * (EXIF, including the location, is gone) and makes the thumbnail. A failed write removes the files.
+ */
+export async function storePhoto(
+  actor: SessionUser,
+  owner: { visitId: string | null, requestId: string | null, customerId: string, featureId: string | null },
+  input: { id: string, data: Buffer, caption: string },
+  audit: { action: string, subjectType: string, subjectId: string, ip: string },
+  tx?: Tx,
+) {
+  if (input.data.length > MAX_PHOTO_BYTES) throw httpError(413, `Invalid body: file — photos may be at most 15 MB (this one is ${(input.data.length / 1048576).toFixed(1)} MB)`, { fields: { file: 'At most 15 MB' } })
+  const kind = sniffImageType(input.data)
+  if (kind === 'heic') throw httpError(415, 'Invalid body: file — HEIC photos cannot be converted here. Set the camera to JPEG ("most compatible") or share the photo as JPEG.', { fields: { file: 'HEIC is not supported; use JPEG' } })
+  if (!kind) throw httpError(415, 'Invalid body: file — send a JPEG, PNG or WebP photo', { fields: { file: 'Send a JPEG, PNG or WebP photo' } })
   let full: { data: Buffer, info: OutputInfo }
   let thumb: Buffer
   try {
@@ -57,15 +72,16 @@ export async function addVisitPhoto(actor: SessionUser, visitId: string, input: 
   const storage = useStorage('uploads')
   await storage.setItemRaw(fullKey(input.id), full.data)
   await storage.setItemRaw(thumbKey(input.id), thumb)
+  const write = async (t: Tx) => {
+    const [row] = await t.insert(photos).values({
+      id: input.id, companyId: actor.companyId, visitId: owner.visitId, requestId: owner.requestId, customerId: owner.customerId, featureId: owner.featureId,
+      contentType: 'image/jpeg', width: full.info.width, height: full.info.height, bytes: full.data.length, caption: input.caption, uploadedBy: actor.id,
+    }).returning()
+    await recordAudit(t, { action: audit.action, companyId: actor.companyId, actorUserId: actor.id, subjectType: audit.subjectType, subjectId: audit.subjectId, ip: audit.ip, detail: { photoId: input.id } })
+    return row!
+  }
   try {
-    return await db.transaction(async (tx) => {
-      const [row] = await tx.insert(photos).values({
-        id: input.id, companyId: actor.companyId, visitId, customerId: v.customerId, featureId: input.featureId ?? null,
-        contentType: 'image/jpeg', width: full.info.width, height: full.info.height, bytes: full.data.length, caption: input.caption, uploadedBy: actor.id,
-      }).returning()
-      await recordAudit(tx, { action: 'visit.photo_added', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'visit', subjectId: visitId, ip, detail: { photoId: input.id } })
-      return row!
-    })
+    return tx ? await write(tx) : await useDb().transaction(write)
   }
   catch (err) {
     await storage.removeItem(fullKey(input.id))

@@ -2,7 +2,7 @@ import { and, asc, eq, inArray, notInArray, sql } from 'drizzle-orm'
 import type { VisitRecordInput } from '../../shared/schemas/visit-record'
 import type { WaterReading } from '../../shared/types/water'
 import { evaluateReading, pressureAtAltitudeKPa, WaterInputError } from '../../shared/utils/water-chemistry'
-import { contractFeatures, doses, photos, products, readings, sites, visits, waterFeatures } from '../db/schema'
+import { contractFeatures, doses, photos, products, readings, serviceRequests, sites, visits, waterFeatures } from '../db/schema'
 import type { SessionUser } from '../utils/auth'
 import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
@@ -128,6 +128,8 @@ export async function finishVisit(actor: SessionUser, id: string, input: VisitRe
     if (locked!.status !== 'in_progress') throw httpError(409, 'Start the visit first')
     await tx.update(visits).set({ status: 'done', finishedAt: new Date(), sequence: sql`${visits.sequence} + 1` }).where(eq(visits.id, id))
     await recordAudit(tx, { action: 'visit.finished', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'visit', subjectId: id, ip })
+    // A customer's request booked as this visit is done with it.
+    await tx.update(serviceRequests).set({ status: 'done' }).where(and(eq(serviceRequests.visitId, id), eq(serviceRequests.status, 'scheduled')))
     await queueVisitReport(tx, id)
   })
   void flushOutbox().catch(() => {})

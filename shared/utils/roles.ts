@@ -12,6 +12,8 @@ export const PERMISSIONS = {
   'overview.read': ['owner'],
   'today.read': ['owner', 'technician'],
   'portal.read': ['customer'],
+  /** The customer's own tests and preferences. */
+  'portal.write': ['customer'],
   /** Customers, sites and features: customers read only their own (enforced in the services). */
   'records.read': ['owner', 'technician', 'customer'],
   'records.edit': ['owner', 'technician'],
@@ -32,6 +34,10 @@ export const PERMISSIONS = {
   'invoices.read': ['owner', 'customer'],
   'invoices.pay': ['customer'],
   'revenue.read': ['owner'],
+  /** Service requests: customers make and read their own; the owner answers them. */
+  'requests.create': ['customer'],
+  'requests.read': ['owner', 'customer'],
+  'requests.manage': ['owner'],
 } as const satisfies Record<string, readonly Role[]>
 
 export type Permission = keyof typeof PERMISSIONS

@@ -102,6 +102,20 @@ const MATRIX: Record<string, Who[] | 'public'> = {
   'POST /api/billing/run': ['owner'],
   'GET /api/billing/runs': ['owner'],
   'GET /api/revenue': ['owner'],
+  // The customer portal: a customer's own records only (tenancy-routes.test.ts tries another's ids).
+  'GET /api/portal/features': ['customer'],
+  'GET /api/portal/treatments': ['customer'],
+  'POST /api/portal/readings': ['customer'],
+  'GET /api/portal/visits': ['customer'],
+  'GET /api/portal/visits/:id': ['customer'],
+  'GET /api/portal/preferences': ['customer'],
+  'PATCH /api/portal/preferences': ['customer'],
+  'GET /api/requests': ['owner', 'customer'],
+  'POST /api/requests': ['customer'],
+  'GET /api/requests/:id': ['owner', 'customer'],
+  'POST /api/requests/:id/photos': ['customer'],
+  'POST /api/requests/:id/schedule': ['owner'],
+  'POST /api/requests/:id/decline': ['owner'],
 }
 
 const routes = listApiRoutes()

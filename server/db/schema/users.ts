@@ -1,7 +1,7 @@
 import { boolean, index, integer, pgEnum, pgTable, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core'
 import { ROLES } from '../../../shared/utils/roles'
 import { id, timestamps } from './columns'
-import { companies } from './companies'
+import { companies, unitSystem } from './companies'
 import { customers } from './customers'
 
 export const userRole = pgEnum('user_role', ROLES)
@@ -21,6 +21,8 @@ export const users = pgTable('users', {
   lockedUntil: timestamp('locked_until', { withTimezone: true }),
   passwordChangedAt: timestamp('password_changed_at', { withTimezone: true }).notNull().defaultNow(),
   lastSignInAt: timestamp('last_sign_in_at', { withTimezone: true }),
+  /** The units this person reads in; null follows the company's. */
+  unitSystem: unitSystem('unit_system'),
   ...timestamps,
 }, t => [
   uniqueIndex('users_email_key').on(t.email),

@@ -4,6 +4,7 @@ import { timestamps, id } from './columns'
 import { companies } from './companies'
 import { waterFeatures } from './features'
 import { users } from './users'
+import { serviceRequests } from './requests'
 import { visits } from './visits'
 
 export const productKind = pgEnum('product_kind', ['dechlorinator', 'bacteria', 'kh_buffer', 'salt', 'other'])
@@ -77,11 +78,12 @@ export const doses = pgTable('doses', {
   ...timestamps,
 }, t => [index('doses_feature_idx').on(t.featureId, t.dosedAt), index('doses_visit_idx').on(t.visitId)])
 
-/** A photo from a visit; the files live in unstorage (`uploads`), keyed by id. */
+/** A photo from a visit or attached to a customer's request; the files live in unstorage (`uploads`), keyed by id. */
 export const photos = pgTable('photos', {
   id: uuid('id').primaryKey(),
   companyId: uuid('company_id').notNull().references(() => companies.id, { onDelete: 'cascade' }),
-  visitId: uuid('visit_id').notNull().references(() => visits.id, { onDelete: 'cascade' }),
+  visitId: uuid('visit_id').references(() => visits.id, { onDelete: 'cascade' }),
+  requestId: uuid('request_id').references(() => serviceRequests.id, { onDelete: 'cascade' }),
   customerId: uuid('customer_id').notNull(),
   featureId: uuid('feature_id').references(() => waterFeatures.id, { onDelete: 'set null' }),
   contentType: text('content_type').notNull(),
@@ -91,7 +93,7 @@ export const photos = pgTable('photos', {
   caption: text('caption').notNull().default(''),
   uploadedBy: uuid('uploaded_by').references(() => users.id, { onDelete: 'set null' }),
   ...timestamps,
-}, t => [index('photos_visit_idx').on(t.visitId)])
+}, t => [index('photos_visit_idx').on(t.visitId), index('photos_request_idx').on(t.requestId)])
 
 export const outboxStatus = pgEnum('outbox_status', ['pending', 'sent', 'failed'])
 

@@ -1,0 +1,12 @@
+import { requestPhotoFields } from '../../../../shared/schemas/portal'
+import { idParam } from '../../../../shared/schemas/common'
+import { addRequestPhoto } from '../../../services/requests'
+
+// multipart/form-data: file, id (made by the browser, so a retry is the same photo), caption?
+export default defineEventHandler(async (event) => {
+  const user = await requireUser(event, { permission: 'requests.create' })
+  const { id } = paramsAs(event, idParam)
+  const upload = await readPhotoUpload(event, requestPhotoFields)
+  setResponseStatus(event, 201)
+  return addRequestPhoto(user, id, { ...upload.fields, data: upload.data }, requestIp(event))
+})
