@@ -1,3 +1,4 @@
+import { createRequire } from 'node:module'
 import { mkdirSync } from 'node:fs'
 import { resolve } from 'node:path'
 import { chromium, type Browser, type Page } from 'playwright-core'
@@ -28,4 +29,16 @@ export async function signInThroughForm(page: Page, email: string, password = DE
 
 export function shot(page: Page, name: string) {
   return page.screenshot({ path: resolve(ARTIFACTS, `${name}.png`), fullPage: true })
+}
+
+/** Serious and critical accessibility problems axe-core finds on the page (empty when there are none). */
+export async function seriousA11yViolations(page: Page) {
+  await page.addScriptTag({ path: createRequire(import.meta.url).resolve('axe-core/axe.min.js') })
+  const violations = await page.evaluate(async () => {
+    const axe = (window as unknown as { axe: { run: (ctx: Document, opts: object) => Promise<{ violations: Array<{ id: string, impact: string | null, help: string, nodes: Array<{ target: unknown[] }> }> }> } }).axe
+    const r = await axe.run(document, { resultTypes: ['violations'] })
+    return r.violations
+  })
+  return violations.filter(v => v.impact === 'serious' || v.impact === 'critical')
+    .map(v => `${v.impact}: ${v.id} — ${v.help} (${v.nodes.slice(0, 3).map(n => String(n.target[0])).join(', ')})`)
 }
