@@ -10,6 +10,7 @@ import { hashPassword } from '../server/utils/password'
 import { DEMO_PASSWORD, demoCompany, demoCustomers, demoStaff } from './seed/demo-data'
 import { demoSitesAndFeatures } from './seed/demo-features'
 import { seedReadings } from './seed/demo-readings'
+import { seedRequests } from './seed/demo-requests'
 import { seedInvoices } from './seed/demo-invoices'
 import { seedSchedule } from './seed/demo-schedule'
 
@@ -67,6 +68,7 @@ export async function seedDemo() {
     const schedule = await seedSchedule(tx, companyId, demoId, featureRefs, demoCustomers.map(c => c.key))
     added += schedule.added + await seedReadings(tx, companyId, demoId, schedule.contractIds)
     added += await seedInvoices(tx, companyId, schedule.contractIds)
+    added += await seedRequests(tx, companyId, demoId)
   })
   return added
 }
