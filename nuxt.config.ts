@@ -3,7 +3,7 @@ export default defineNuxtConfig({
   compatibilityDate: '2026-11-01',
   devtools: { enabled: false },
   telemetry: false,
-  modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', '@sidebase/nuxt-auth'],
+  modules: ['@nuxtjs/tailwindcss', '@pinia/nuxt', '@sidebase/nuxt-auth', 'nuxt-security'],
   css: ['~/assets/css/main.css'],
   app: {
     head: {
@@ -45,7 +45,8 @@ export default defineNuxtConfig({
         headerName: 'Authorization',
         maxAgeInSeconds: 12 * 60 * 60,
         sameSiteAttribute: 'lax',
-        secureCookieAttribute: false,
+        // Secure when served over TLS (set RILLBOOK_SECURE_COOKIES=1 when building for HTTPS).
+        secureCookieAttribute: process.env.RILLBOOK_SECURE_COOKIES === '1',
       },
       session: {
         dataType: {
@@ -58,6 +59,51 @@ export default defineNuxtConfig({
       },
     },
     sessionRefresh: { enablePeriodically: false, enableOnWindowFocus: false },
+  },
+  // Security headers with a nonce-based CSP (nuxt-security), and request size limits. Cross-site
+  // request forgery is refused by server/middleware/csrf.ts; sign-in limits live in the sign-in service.
+  security: {
+    nonce: true,
+    sri: true,
+    // Server logs are ours (tasks, errors): keep console calls.
+    removeLoggers: false,
+    headers: {
+      contentSecurityPolicy: {
+        'base-uri': ["'none'"],
+        'default-src': ["'self'"],
+        'connect-src': ["'self'"],
+        'font-src': ["'self'", 'data:'],
+        'form-action': ["'self'"],
+        'frame-ancestors': ["'none'"],
+        // The visit-report e-mail is shown in a sandboxed srcdoc frame.
+        'frame-src': ["'self'"],
+        'img-src': ["'self'", 'data:', 'blob:'],
+        'object-src': ["'none'"],
+        'script-src-attr': ["'none'"],
+        // Vue and the charts set inline styles.
+        'style-src': ["'self'", "'unsafe-inline'"],
+        'script-src': ["'self'", "'strict-dynamic'", "'nonce-{{nonce}}'"],
+        'worker-src': ["'self'", 'blob:'],
+        // The demo is served over plain HTTP on loopback; behind TLS the proxy upgrades.
+        'upgrade-insecure-requests': false,
+      },
+      crossOriginEmbedderPolicy: 'unsafe-none',
+      xFrameOptions: 'DENY',
+      referrerPolicy: 'same-origin',
+      permissionsPolicy: { 'camera': ['self'], 'display-capture': [], 'fullscreen': [], 'geolocation': [], 'microphone': [] },
+    },
+    requestSizeLimiter: {
+      // JSON bodies up to 1 MB; photo uploads (multipart) up to 16 MB.
+      maxRequestSizeInBytes: 1_000_000,
+      maxUploadFileRequestInBytes: 16_000_000,
+      throwError: true,
+    },
+    // Sign-in has its own per-account and per-address limits; a global limiter would throttle a
+    // technician's phone catching up after a dead zone.
+    rateLimiter: false,
+    // Input is validated by zod and every output is escaped; this filter would refuse honest notes.
+    xssValidator: false,
+    corsHandler: false,
   },
   tailwindcss: {
     cssPath: false,

@@ -212,3 +212,9 @@ if (process.argv[1] && resolve(process.argv[1]) === fileURLToPath(import.meta.ur
     process.exitCode = 1
   }
 }
+
+/** The path of a PostgreSQL client program (pg_dump, pg_restore) of the newest server install, or its bare name from PATH. */
+export function pgTool(name) {
+  const bin = findBinDir()
+  return bin && existsSync(join(bin, name)) ? join(bin, name) : name
+}

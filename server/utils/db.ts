@@ -19,7 +19,15 @@ export function databaseUrl(): string {
 /** The one pooled Drizzle instance. Nothing else in the app opens database connections. */
 export function useDb(): Database {
   if (!instance) {
-    pool = new pg.Pool({ connectionString: databaseUrl(), max: Number(process.env.RILLBOOK_PG_POOL_MAX || 10) })
+    pool = new pg.Pool({
+      connectionString: databaseUrl(),
+      max: Number(process.env.RILLBOOK_PG_POOL_MAX || 10),
+      // During a database outage requests fail fast (503) instead of queueing for ever.
+      connectionTimeoutMillis: Number(process.env.RILLBOOK_PG_CONNECT_TIMEOUT_MS || 5000),
+    })
+    // An idle connection dropped by a restarting server must not take the process down; the pool
+    // opens a new one on the next query.
+    pool.on('error', (err) => { console.error(`[db] idle connection lost: ${err.message}`) })
     instance = drizzle(pool, { schema })
   }
   return instance
@@ -56,4 +64,15 @@ export async function withSessionLock<T>(name: string, fn: () => Promise<T>): Pr
   finally {
     client.release()
   }
+}
+
+const DOWN_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', 'ENOTFOUND', '57P01', '57P02', '57P03', '08000', '08001', '08003', '08004', '08006'])
+
+/** True when `err` (or its cause) says the database cannot be reached, rather than a bad query. */
+export function isDatabaseDown(err: unknown): boolean {
+  for (let e = err as { code?: string, message?: string, cause?: unknown } | undefined, depth = 0; e && depth < 6; e = e.cause as typeof e, depth++) {
+    if (e.code && DOWN_CODES.has(e.code)) return true
+    if (typeof e.message === 'string' && /Connection terminated|timeout exceeded when trying to connect|the database system is (starting up|shutting down)/i.test(e.message)) return true
+  }
+  return false
 }

@@ -3,7 +3,7 @@
 // own port. It runs once per `vitest run` even though two projects list it (the state lives on
 // globalThis).
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process'
-import { mkdirSync, readFileSync, rmSync } from 'node:fs'
+import { createWriteStream, mkdirSync, readFileSync, rmSync } from 'node:fs'
 import net from 'node:net'
 import { resolve } from 'node:path'
 import type { TestProject } from 'vitest/node'
@@ -19,6 +19,8 @@ const PORT = Number(process.env.RILLBOOK_TEST_PORT || 3199)
 const UPLOADS_DIR = resolve(root, '.data/uploads-test')
 const SMTP_PORT = Number(process.env.RILLBOOK_TEST_SMTP_PORT || 2526)
 const MAIL_DIR = resolve(root, '.data/mail-test')
+/** Everything the test server prints, for the test that checks no secret reaches the logs. */
+const SERVER_LOG = resolve(root, '.data/test-server.log')
 const PAYMENTS_PORT = Number(process.env.RILLBOOK_TEST_PAYMENTS_PORT || 12112)
 const PAYMENTS_DIR = resolve(root, '.data/payments-test')
 /** The test run's payment settings: the SDK goes to the local fake, which signs webhooks with this secret. */
@@ -133,7 +135,7 @@ async function bringUp(): Promise<TestEnv> {
 
   const server = spawn(process.execPath, [resolve(root, '.output/server/index.mjs')], {
     cwd: root,
-    stdio: ['ignore', 'inherit', 'inherit'],
+    stdio: ['ignore', 'pipe', 'pipe'],
     env: {
       ...env,
       NITRO_HOST: '127.0.0.1',
@@ -154,6 +156,13 @@ async function bringUp(): Promise<TestEnv> {
       RILLBOOK_PUBLIC_URL: `http://127.0.0.1:${PORT}`,
     },
   })
+  const log = createWriteStream(SERVER_LOG, { flags: 'w' })
+  for (const out of [server.stdout!, server.stderr!]) {
+    out.on('data', (chunk: Buffer) => {
+      log.write(chunk)
+      process.stderr.write(chunk)
+    })
+  }
   const baseUrl = `http://127.0.0.1:${PORT}`
   try {
     await waitFor(`${baseUrl}/api/health`, server)
@@ -178,6 +187,7 @@ export async function setup(project: TestProject) {
   project.provide('smtpPort', SMTP_PORT)
   project.provide('paymentsUrl', STRIPE_TEST.STRIPE_API_URL)
   project.provide('paymentsEnv', STRIPE_TEST)
+  project.provide('serverLog', SERVER_LOG)
 }
 
 export async function teardown() {
@@ -199,5 +209,6 @@ declare module 'vitest' {
     smtpPort: number
     paymentsUrl: string
     paymentsEnv: Record<string, string>
+    serverLog: string
   }
 }
