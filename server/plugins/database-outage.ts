@@ -6,7 +6,7 @@ export default defineNitroPlugin((nitroApp) => {
   const handle = nitroApp.h3App.options.onError
   nitroApp.h3App.options.onError = (error, event) => {
     if (isDatabaseDown(error)) {
-      setResponseHeader(event, 'Retry-After', '5')
+      setResponseHeader(event, 'Retry-After', 5)
       const unavailable = createError({ statusCode: 503, statusMessage: 'Service Unavailable', message: 'The database is not reachable right now; try again in a moment', data: {} })
       return handle ? handle(unavailable, event) : undefined
     }
