@@ -88,7 +88,7 @@ async function main() {
       select ct.company_id, ct.id, ct.customer_id, s.id, 'routine', (case when d.day < $2::date then 'done' else 'scheduled' end)::visit_status, d.day,
              (d.day + time '14:00') at time zone 'UTC', 60, t.id, case when d.day < $2::date then (d.day + time '15:00') at time zone 'UTC' end
       from contracts ct join sites s on s.customer_id = ct.customer_id
-      cross join lateral (select (ct.term_start + (14 + 21 * k) * interval '1 day')::date as day from generate_series(0, 9) k) d
+      cross join lateral (select (ct.term_start + (14 + 21 * k) * interval '1 day')::date as day from generate_series(0, 12) k) d
       join lateral (select id from users where company_id = ct.company_id and role = 'technician' order by email offset (abs(hashtext(ct.customer_id::text)) % 20) limit 1) t on true
       where ct.company_id = $1`, [companyId, todayDate])
     await step('water tests', `insert into readings (id, company_id, feature_id, source, taken_at, temperature_c, ph, total_ammonia_mg_l, nitrite_mg_l, kh_mg_l, overall, evaluation)

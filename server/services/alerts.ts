@@ -61,6 +61,18 @@ export async function runAlertScan(opts: { now?: Date } = {}) {
     const keep = (a: typeof alerts.$inferSelect | null) => { if (a && a.severity === 'act') notify.push(a) }
 
     // Latest reading per feature among the new ones decides the reading alerts (older ones only raise).
+    // Each new reading's previous reading of the same feature, in one query (no query per reading).
+    const previousOf = new Map<string, { pH: number | null, temperatureC: number | null, khMgL: number | null, waterLevelMm: number | null, takenAt: Date }>()
+    if (fresh.length) {
+      const { rows } = await tx.execute<{ id: string, ph: number | null, temperature_c: number | null, kh_mg_l: number | null, water_level_mm: number | null, taken_at: Date | string }>(sql`
+        select r.id, p.ph, p.temperature_c, p.kh_mg_l, p.water_level_mm, p.taken_at
+        from ${readings} r cross join lateral (
+          select q.ph, q.temperature_c, q.kh_mg_l, q.water_level_mm, q.taken_at from ${readings} q
+          where q.feature_id = r.feature_id and q.taken_at < r.taken_at order by q.taken_at desc limit 1
+        ) p
+        where r.seq > ${mark!.lastSeq} and r.seq <= ${fresh.at(-1)!.seq}`)
+      for (const p of rows) previousOf.set(p.id, { pH: p.ph, temperatureC: p.temperature_c, khMgL: p.kh_mg_l, waterLevelMm: p.water_level_mm, takenAt: new Date(p.taken_at) })
+    }
     const latestByFeature = new Map<string, number>()
     for (const r of fresh) latestByFeature.set(r.featureId, Math.max(latestByFeature.get(r.featureId) ?? 0, r.takenAt.getTime()))
     for (const r of fresh) {
@@ -73,8 +85,8 @@ export async function runAlertScan(opts: { now?: Date } = {}) {
         }
         keep(await raise(tx, { companyId: r.companyId, subjectKey: key, condition: `reading.${p.parameter}`, severity: p.status, title: p.reason, value: p.value, featureId: r.featureId, visitId: r.visitId }, now))
       }
-      // Trends against the feature's previous reading.
-      const [prev] = await tx.select().from(readings).where(and(eq(readings.featureId, r.featureId), lt(readings.takenAt, r.takenAt))).orderBy(desc(readings.takenAt)).limit(1)
+      // Trends against the feature's previous reading (fetched for all new readings at once, above).
+      const prev = previousOf.get(r.id)
       if (!prev) continue
       const f = r.featureId
       if (r.pH != null && prev.pH != null) {

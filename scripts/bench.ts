@@ -1,0 +1,274 @@
+// npm run bench [-- --customers 5000 --duration 5 --reseed]
+// Benchmarks on the large invented company (db:seed:scale): the built server on loopback under
+// autocannon at 1 and 50 connections for sign-in, the technician's Today, a feature's year of
+// readings, the invoices table, the revenue view and the water evaluation, each beside the same
+// query run straight through pg; the alert scan (incremental and full), renewing contracts, the
+// JavaScript each page loads, and that every list is paginated. Writes bench/results/<time>.json
+// and bench/results/summary.md, and names each budget met or missed.
+import { spawn, spawnSync, type ChildProcess } from 'node:child_process'
+import { existsSync, mkdirSync, writeFileSync } from 'node:fs'
+import { dirname, resolve } from 'node:path'
+import { fileURLToPath } from 'node:url'
+import { parseArgs } from 'node:util'
+import { gzipSync } from 'node:zlib'
+import autocannon from 'autocannon'
+import pg from 'pg'
+import { chromium } from 'playwright-core'
+// @ts-expect-error plain ESM script without types
+import { clusterConfig, urlFor } from './db.mjs'
+
+const root = resolve(dirname(fileURLToPath(import.meta.url)), '..')
+const { values } = parseArgs({ options: { customers: { type: 'string', default: '5000' }, duration: { type: 'string', default: '5' }, reseed: { type: 'boolean', default: false }, port: { type: 'string', default: '3299' } } })
+const DURATION = Number(values.duration)
+const PORT = Number(values.port)
+const BASE = `http://127.0.0.1:${PORT}`
+const DB_URL = process.env.BENCH_DATABASE_URL || urlFor(clusterConfig({ database: 'rillbook_scale' }), 'rillbook_scale')
+const say = (m: string) => process.stderr.write(`[bench] ${m}\n`)
+
+const BUDGET = { p95Ms: 50, throughputRatio: 0.4, alertIncrementalS: 1, alertFullS: 20, renew10kS: 60, visitPageJsKb: 200 }
+
+function bin(name: string) {
+  return resolve(root, 'node_modules/.bin', name)
+}
+
+async function ensureData(pgc: pg.Client) {
+  const has = await pgc.query(`select count(*)::int as n from information_schema.tables where table_name = 'readings'`).then(r => r.rows[0].n > 0).catch(() => false)
+  const readings = has ? (await pgc.query('select count(*)::int as n from readings')).rows[0].n : 0
+  return readings
+}
+
+async function startServer(): Promise<ChildProcess> {
+  if (!existsSync(resolve(root, '.output/server/index.mjs'))) {
+    say('building…')
+    spawnSync(bin('nuxt'), ['build'], { cwd: root, stdio: 'inherit' })
+  }
+  const server = spawn(process.execPath, [resolve(root, '.output/server/index.mjs')], {
+    cwd: root, stdio: ['ignore', 'ignore', 'inherit'],
+    env: { ...process.env, DATABASE_URL: DB_URL, NITRO_HOST: '127.0.0.1', NITRO_PORT: String(PORT), RILLBOOK_PG_POOL_MAX: '20', STRIPE_SECRET_KEY: '', SMTP_HOST: '127.0.0.1', SMTP_PORT: '2599' },
+  })
+  for (let i = 0; i < 150; i++) {
+    try {
+      if ((await fetch(`${BASE}/api/health`)).ok) return server
+    }
+    catch {}
+    await new Promise(r => setTimeout(r, 200))
+  }
+  throw new Error('the server did not start')
+}
+
+interface Load { rps: number, p50: number, p95: number, p99: number, errors: number, non2xx: number }
+async function load(opts: { path: string, method?: string, body?: unknown, token?: string, connections: number }): Promise<Load> {
+  const r = await autocannon({
+    url: `${BASE}${opts.path}`, method: (opts.method ?? 'GET') as 'GET', connections: opts.connections, duration: DURATION,
+    headers: { 'content-type': 'application/json', ...(opts.token ? { authorization: `Bearer ${opts.token}` } : {}) },
+    body: opts.body === undefined ? undefined : JSON.stringify(opts.body),
+  })
+  return { rps: r.requests.average, p50: r.latency.p50, p95: percentile95(r), p99: r.latency.p99, errors: r.errors, non2xx: r.non2xx }
+}
+/** autocannon reports p90 and p97.5; p95 is interpolated between them. */
+function percentile95(r: autocannon.Result) {
+  return r.latency.p90 + (r.latency.p97_5 - r.latency.p90) * (5 / 7.5)
+}
+
+/** The same work straight through pg: a pool of `connections`, each running `sql` in a loop. */
+async function baseline(sqls: Array<{ sql: string, params: unknown[] }>, connections: number): Promise<Load> {
+  const pool = new pg.Pool({ connectionString: DB_URL, max: Math.min(connections, 20) })
+  const times: number[] = []
+  const end = Date.now() + DURATION * 1000
+  await Promise.all(Array.from({ length: connections }, async () => {
+    while (Date.now() < end) {
+      const t = performance.now()
+      for (const q of sqls) await pool.query(q.sql, q.params)
+      times.push(performance.now() - t)
+    }
+  }))
+  await pool.end()
+  times.sort((a, b) => a - b)
+  const at = (p: number) => times[Math.min(times.length - 1, Math.floor(p * times.length))] ?? 0
+  return { rps: times.length / DURATION, p50: at(0.5), p95: at(0.95), p99: at(0.99), errors: 0, non2xx: 0 }
+}
+
+async function main() {
+  const pgc = new pg.Client({ connectionString: DB_URL })
+  let readings = 0
+  try {
+    await pgc.connect()
+    readings = await ensureData(pgc)
+  }
+  catch {}
+  if (values.reseed || readings < 1000) {
+    say(`generating the large company (${values.customers} customers)…`)
+    const t = Date.now()
+    const r = spawnSync(bin('tsx'), ['scripts/seed-scale.ts', '--customers', values.customers!], { cwd: root, stdio: ['ignore', 'pipe', 'inherit'], encoding: 'utf8' })
+    if (r.status !== 0) throw new Error('db:seed:scale failed')
+    say(`generated in ${((Date.now() - t) / 1000).toFixed(1)} s`)
+  }
+  const c = new pg.Client({ connectionString: DB_URL })
+  await c.connect()
+  const counts = (await c.query(`select (select count(*) from customers)::int as customers, (select count(*) from water_features)::int as features, (select count(*) from contracts)::int as contracts,
+    (select count(*) from visits)::int as visits, (select count(*) from readings)::int as readings, (select count(*) from invoices)::int as invoices`)).rows[0]
+  say(`data: ${JSON.stringify(counts)}`)
+  const { rows: [co] } = await c.query(`select id from companies where name like 'Larchfield Pond Care%' limit 1`)
+  const companyId = co.id as string
+
+  const server = await startServer()
+  const results: Record<string, unknown> = { at: new Date().toISOString(), counts, durationSeconds: DURATION, budgets: BUDGET }
+  try {
+    const login = async (email: string) => (await (await fetch(`${BASE}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password: 'demo-pond-2026' }) })).json() as { token: string }).token
+    const owner = await login('owner@larchfield-scale.example')
+    const { rows: [busy] } = await c.query(`select u.email, u.id from visits v join users u on u.id = v.technician_id where v.scheduled_on = (now() at time zone 'America/Chicago')::date group by 1, 2 order by count(*) desc limit 1`)
+    const techEmail = busy?.email ?? 'tech1@larchfield-scale.example'
+    const tech = await login(techEmail)
+    const { rows: [feature] } = await c.query(`select feature_id as id from readings group by 1 order by count(*) desc limit 1`)
+    const session = { sql: `select u.id from sessions s join users u on u.id = s.user_id where s.token_hash = $1 and s.expires_at > now()`, params: ['x'] }
+    const cases = [
+      { name: 'sign-in', method: 'POST', path: '/api/auth/login', body: { email: 'owner@larchfield-scale.example', password: 'demo-pond-2026' }, read: false,
+        base: [{ sql: 'select id, password_hash from users where email = $1', params: ['owner@larchfield-scale.example'] }] },
+      { name: "technician's Today", path: '/api/today', token: tech, read: true,
+        base: [session, { sql: `select v.* from visits v join sites s on s.id = v.site_id where v.technician_id = $1 and v.scheduled_on = (now() at time zone 'America/Chicago')::date order by v.starts_at`, params: [busy?.id ?? companyId] }] },
+      { name: "a feature's year of readings", path: `/api/features/${feature.id}/series?range=year`, token: owner, read: true,
+        base: [session, { sql: `select * from readings where feature_id = $1 and taken_at > now() - interval '1 year' order by taken_at`, params: [feature.id] }] },
+      { name: 'invoices table, first page', path: '/api/invoices?page=1&pageSize=25&sort=issueDate&dir=desc', token: owner, read: true,
+        base: [session, { sql: `select i.*, c.name from invoices i join customers c on c.id = i.customer_id where i.company_id = $1 order by i.issue_date desc nulls last limit 25`, params: [companyId] }, { sql: 'select count(*) from invoices where company_id = $1', params: [companyId] }] },
+      { name: 'revenue view', path: '/api/revenue', token: owner, read: true,
+        base: [session, { sql: `select ct.*, p.billing_cadence, p.price_minor from contracts ct join plans p on p.id = ct.plan_id where ct.company_id = $1 and ct.status <> 'draft'`, params: [companyId] }, { sql: `select due_date, total_minor - amount_paid_minor from invoices where company_id = $1 and status = 'open'`, params: [companyId] }] },
+      { name: 'POST /api/water/evaluate', method: 'POST', path: '/api/water/evaluate', token: owner, read: true, body: { volumeL: 12000, kind: 'koi_pond', reading: { temperatureC: 24, pH: 8.1, totalAmmoniaMgL: 0.5, khMgL: 90 } },
+        base: [session] },
+    ]
+    const rows: Array<Record<string, unknown>> = []
+    for (const k of cases) {
+      for (const connections of [1, 50]) {
+        say(`${k.name} at ${connections} connection(s)…`)
+        const app = await load({ path: k.path, method: k.method, body: k.body, token: k.token, connections })
+        const raw = await baseline(k.base, connections)
+        rows.push({ name: k.name, read: k.read, connections, app, pg: raw, ratio: raw.rps > 0 ? app.rps / raw.rps : null })
+      }
+    }
+    results.endpoints = rows
+
+    // The alert scan: incremental over 10,000 new readings, then a full run over everything.
+    say('alert scan…')
+    const scan = (env: Record<string, string> = {}) => {
+      const t = Date.now()
+      const r = spawnSync(bin('tsx'), ['scripts/task-alerts.ts'], { cwd: root, env: { ...process.env, DATABASE_URL: DB_URL, ...env }, encoding: 'utf8', timeout: 180_000 })
+      return { seconds: (Date.now() - t) / 1000, ok: r.status === 0, output: (r.stdout || r.stderr || '').trim().slice(-300) }
+    }
+    await c.query(`insert into task_watermarks (name, last_seq) values ('alerts:scan', (select coalesce(max(seq), 0) from readings)) on conflict (name) do update set last_seq = excluded.last_seq`)
+    await c.query(`insert into readings (id, company_id, feature_id, source, taken_at, ph, total_ammonia_mg_l, overall, evaluation)
+      select gen_random_uuid(), f.company_id, f.id, 'technician', now() - (g % 50) * interval '1 minute', 7.5, 0.1, 'ok', '[]'::jsonb from water_features f cross join generate_series(1, 2) g limit 10000`)
+    const incremental = scan()
+    await c.query(`update task_watermarks set last_seq = 0 where name = 'alerts:scan'`)
+    const full = scan()
+    results.alertScan = { incremental10k: incremental, fullRun: full, note: 'One run reads at most 50,000 new readings (the scan limit); a full run over all history therefore takes several runs.' }
+
+    // Renewals: every active contract whose term ends soonest, renewed by the billing job as of 10 days before its end.
+    say('renewals…')
+    const { rows: [term] } = await c.query(`select term_end::text as end, count(*)::int as n from contracts where status = 'active' group by 1 order by 2 desc limit 1`)
+    const day = new Date(Date.parse(term.end) - 10 * 86_400_000).toISOString().slice(0, 10)
+    const t = Date.now()
+    const renew = spawnSync(bin('tsx'), ['scripts/task-billing.ts', '--company', companyId, '--today', day], { cwd: root, env: { ...process.env, DATABASE_URL: DB_URL, STRIPE_SECRET_KEY: '' }, encoding: 'utf8', timeout: 600_000 })
+    const seconds = (Date.now() - t) / 1000
+    const summary = (() => {
+      try {
+        return JSON.parse(renew.stdout.trim().split('\n').at(-1) ?? '{}')
+      }
+      catch {
+        return {}
+      }
+    })()
+    const dup = (await c.query(`select (select count(*) from (select previous_contract_id from contracts where previous_contract_id is not null group by 1 having count(*) > 1) d)::int as contracts,
+      (select count(*) from (select billing_key from invoices where billing_key is not null group by company_id, billing_key having count(*) > 1) d)::int as invoices`)).rows[0]
+    results.renewals = { asOf: day, eligible: term.n, renewed: summary.renewed ?? 0, invoicesRaised: summary.invoicesRaised ?? 0, seconds, per10kSeconds: summary.renewed ? (seconds / summary.renewed) * 10_000 : null, duplicates: dup, note: 'Payment provider calls are off for this measurement (STRIPE_SECRET_KEY unset); they are retried by the job separately.' }
+
+    // JavaScript on first load, per page, gzipped, measured in the browser.
+    say('page weights…')
+    const browser = await chromium.launch({ executablePath: process.env.CHROMIUM_PATH || '/usr/bin/chromium', args: ['--headless', '--no-sandbox', '--disable-gpu'] })
+    const { rows: [visit] } = await c.query(`select id from visits where technician_id = (select id from users where email = $1) and scheduled_on = (now() at time zone 'America/Chicago')::date limit 1`, [techEmail])
+    const pages: Record<string, number> = {}
+    for (const [who, token, paths] of [['technician', tech, ['/today', ...(visit ? [`/visits/${visit.id}`] : [])]], ['owner', owner, ['/', '/invoices', '/revenue', '/schedule']]] as const) {
+      for (const path of paths) {
+        const ctx = await browser.newContext()
+        await ctx.addCookies([{ name: 'auth.token', value: token, url: BASE }])
+        const page = await ctx.newPage()
+        let bytes = 0
+        page.on('response', async (r) => {
+          if (r.request().resourceType() !== 'script') return
+          try {
+            bytes += gzipSync(await r.body()).length
+          }
+          catch {}
+        })
+        await page.goto(`${BASE}${path}`, { waitUntil: 'networkidle' })
+        pages[`${who} ${path.replace(/[0-9a-f-]{36}/, ':id')}`] = Math.round(bytes / 1024)
+        await ctx.close()
+      }
+    }
+    await browser.close()
+    results.pageJsKbGzip = pages
+
+    // Every list is paginated: ask for 1,000 rows and get 100 at most (or a 400).
+    say('pagination…')
+    const lists = ['/api/customers', '/api/sites', '/api/features', '/api/contracts', '/api/visits', '/api/invoices', '/api/alerts', '/api/users', '/api/audit', '/api/plans', '/api/products', `/api/features/${feature.id}/readings`, `/api/features/${feature.id}/visits`, '/api/requests', '/api/outbox']
+    const paged: Record<string, string> = {}
+    for (const l of lists) {
+      const r = await fetch(`${BASE}${l}?pageSize=1000`, { headers: { authorization: `Bearer ${owner}` } })
+      const body = await r.json().catch(() => ({})) as { rows?: unknown[] }
+      const all = await (await fetch(`${BASE}${l}`, { headers: { authorization: `Bearer ${owner}` } })).json().catch(() => ({})) as { rows?: unknown[] }
+      paged[l] = r.status === 400 ? `refuses pageSize=1000; default page ${all.rows?.length ?? '?'} rows` : `returned ${body.rows?.length ?? '?'} rows`
+    }
+    results.pagination = paged
+
+    // EXPLAIN for the heaviest reads.
+    const explain: Record<string, string> = {}
+    for (const k of cases.filter(x => x.read)) {
+      const q = k.base.at(-1)!
+      explain[k.name] = (await c.query(`explain (analyze, buffers off, timing off, summary on) ${q.sql}`, q.params)).rows.map(r => r['QUERY PLAN']).join('\n')
+    }
+    results.explain = explain
+  }
+  finally {
+    server.kill('SIGTERM')
+    await c.end()
+    await pgc.end().catch(() => {})
+  }
+  const dir = resolve(root, 'bench/results')
+  mkdirSync(dir, { recursive: true })
+  const stamp = new Date().toISOString().replace(/[:.]/g, '-')
+  writeFileSync(resolve(dir, `${stamp}.json`), `${JSON.stringify(results, null, 2)}\n`)
+  writeFileSync(resolve(dir, 'latest.json'), `${JSON.stringify(results, null, 2)}\n`)
+  writeFileSync(resolve(dir, 'summary.md'), summaryMd(results))
+  say(`written bench/results/${stamp}.json and bench/results/summary.md`)
+}
+
+function summaryMd(r: Record<string, any>) {
+  const ok = (b: boolean) => (b ? 'met' : '**missed**')
+  const lines = [`# Benchmark summary`, '', `Run ${r.at} on this machine, ${r.durationSeconds} s per measurement. Data: ${Object.entries(r.counts).map(([k, v]) => `${v} ${k}`).join(', ')}.`, '',
+    '| endpoint | connections | app req/s | app p95 ms | pg req/s | pg p95 ms | app ÷ pg | p95 budget (reads, 50 conn.) | throughput budget (≥ 40 %) |', '| --- | --- | --- | --- | --- | --- | --- | --- | --- |']
+  for (const e of r.endpoints ?? []) {
+    const p95Budget = e.read && e.connections === 50 ? ok(e.app.p95 < r.budgets.p95Ms) : '—'
+    const ratioBudget = e.read ? ok((e.ratio ?? 0) >= r.budgets.throughputRatio) : '—'
+    lines.push(`| ${e.name} | ${e.connections} | ${e.app.rps.toFixed(0)} | ${e.app.p95.toFixed(1)} | ${e.pg.rps.toFixed(0)} | ${e.pg.p95.toFixed(1)} | ${e.ratio == null ? '—' : `${(e.ratio * 100).toFixed(0)} %`} | ${p95Budget} | ${ratioBudget} |`)
+  }
+  const a = r.alertScan
+  if (a) lines.push('', `Alert scan: incremental run over 10,000 new readings ${a.incremental10k.seconds.toFixed(1)} s (budget 1 s: ${ok(a.incremental10k.seconds < r.budgets.alertIncrementalS)}; the time includes starting the script); full run ${a.fullRun.seconds.toFixed(1)} s (budget 20 s: ${ok(a.fullRun.seconds < r.budgets.alertFullS)}). ${a.note}`)
+  const n = r.renewals
+  if (n) lines.push('', `Renewals: ${n.renewed} of ${n.eligible} contracts renewed (and ${n.invoicesRaised} invoices raised) in ${n.seconds.toFixed(1)} s as of ${n.asOf}; at that rate 10,000 take ${n.per10kSeconds?.toFixed(0) ?? '—'} s (budget 60 s: ${ok((n.per10kSeconds ?? Infinity) < r.budgets.renew10kS)}). Duplicates: ${n.duplicates.contracts} contracts, ${n.duplicates.invoices} invoices. ${n.note}`)
+  if (r.pageJsKbGzip) {
+    lines.push('', '| page | JavaScript on first load (kB gzip) |', '| --- | --- |')
+    for (const [p, kb] of Object.entries(r.pageJsKbGzip)) lines.push(`| ${p} | ${kb}${p.includes('/visits/') ? ` (budget ${r.budgets.visitPageJsKb} kB: ${ok((kb as number) <= r.budgets.visitPageJsKb)})` : ''} |`)
+  }
+  if (r.pagination) {
+    lines.push('', 'Pagination (every list asked for 1,000 rows):', '')
+    for (const [p, v] of Object.entries(r.pagination)) lines.push(`- \`${p}\`: ${v}`)
+  }
+  if (r.explain) {
+    lines.push('', '## EXPLAIN ANALYZE of the baseline queries', '')
+    for (const [k, v] of Object.entries(r.explain)) lines.push(`### ${k}`, '', '```', v as string, '```', '')
+  }
+  return `${lines.join('\n')}\n`
+}
+
+main().catch((err) => {
+  say(err.stack || err.message)
+  process.exit(1)
+})
