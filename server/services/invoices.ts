@@ -56,18 +56,21 @@ function listWhere(actor: SessionUser, q: Omit<InvoiceListQuery, 'page' | 'pageS
 function listOrder(q: Pick<InvoiceListQuery, 'sort' | 'dir'>) {
   const col = { number: invoices.number, issueDate: invoices.issueDate, dueDate: invoices.dueDate, total: invoices.totalMinor, status: invoices.status, customer: customers.name }[q.sort]
   const dir = q.dir === 'desc' ? desc : asc
-  // Drafts have no number or dates yet: they sort last either way, newest first among themselves.
-  return [sql`${col} is null`, dir(col), desc(invoices.numberYear), desc(invoices.numberSeq), desc(invoices.createdAt), asc(invoices.id)]
+  // Plain column order so the (company, column) indexes serve it; drafts (no number or dates
+  // yet) come first when sorting newest first, last when oldest first.
+  return [dir(col), desc(invoices.numberYear), desc(invoices.numberSeq), asc(invoices.id)]
 }
 
 export async function listInvoices(actor: SessionUser, q: InvoiceListQuery) {
   const db = useDb()
   const today = await companyToday(actor.companyId)
   const cond = listWhere(actor, q, today)
+  // The customer join is needed for counting only when searching by name.
+  const counted = () => (q.q ? db.select({ n: count() }).from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId)) : db.select({ n: count() }).from(invoices))
   const [rows, [total], totals] = await Promise.all([
     db.select(listColumns).from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId))
       .where(cond).orderBy(...listOrder(q)).limit(q.pageSize).offset((q.page - 1) * q.pageSize),
-    db.select({ n: count() }).from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId)).where(cond),
+    counted().where(cond),
     // What the filtered set adds up to, per currency (a company normally has one).
     db.select({ currency: invoices.currency, totalMinor: sql<number>`coalesce(sum(${invoices.totalMinor}), 0)::bigint`, dueMinor: sql<number>`coalesce(sum(case when ${invoices.status} = 'open' then ${invoices.totalMinor} - ${invoices.amountPaidMinor} else 0 end), 0)::bigint` })
       .from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId)).where(cond).groupBy(invoices.currency),
