@@ -2,10 +2,10 @@
 // today (same billing keys, so the job never raises them again), mostly paid, some open, a few
 // overdue at different reminder stages. Numbers run in issue-date order, gapless per year.
 import { and, asc, eq, inArray, lte } from 'drizzle-orm'
-import { VISIT_TYPE_LABELS } from '../../shared/types/schedule'
 import { monthlyPeriods } from '../../shared/utils/billing'
 import { addDays, localToday } from '../../shared/utils/recurrence'
 import { companies, contracts, invoices, plans, visits } from '../../server/db/schema'
+import { monthInvoice, termInvoice, visitInvoice } from '../../server/services/billing-run'
 import { finalizeInTx, insertDraft, type NewInvoice } from '../../server/services/invoices'
 import type { Tx } from '../../server/utils/db'
 
@@ -20,27 +20,23 @@ export async function seedInvoices(tx: Tx, companyId: string, contractIds: strin
     id: contracts.id, customerId: contracts.customerId, currency: contracts.currency, termStart: contracts.termStart, termEnd: contracts.termEnd, status: contracts.status,
     cadence: plans.billingCadence, planName: plans.name, priceMinor: plans.priceMinor, override: contracts.priceOverrideMinor,
   }).from(contracts).innerJoin(plans, eq(plans.id, contracts.planId)).where(inArray(contracts.id, contractIds)).orderBy(asc(contracts.id))
-  const fmt = (d: string) => new Intl.DateTimeFormat('en-US', { month: 'short', day: 'numeric', year: 'numeric', timeZone: 'UTC' }).format(new Date(`${d}T12:00:00Z`))
   const specs: Array<{ issue: string, n: NewInvoice }> = []
   for (const c of rows) {
-    const price = c.override ?? c.priceMinor
-    const base = { companyId, customerId: c.customerId, contractId: c.id, currency: c.currency }
+    const billed = { id: c.id, companyId, customerId: c.customerId, currency: c.currency, planName: c.planName, priceMinor: c.override ?? c.priceMinor }
     if (c.cadence === 'yearly') {
       const issue = addDays(c.termStart, -14)
-      if (issue <= today) specs.push({ issue, n: { ...base, source: 'contract_term', billingKey: `term:${c.id}`, periodStart: c.termStart, periodEnd: c.termEnd, lines: [{ kind: 'plan', description: `${c.planName}, ${fmt(c.termStart)} – ${fmt(c.termEnd)}`, quantity: 1, unitPriceMinor: price, taxable: true }] } })
+      if (issue <= today) specs.push({ issue, n: termInvoice(billed, { start: c.termStart, end: c.termEnd }) })
     }
     else if (c.cadence === 'monthly') {
       for (const p of monthlyPeriods(c.termStart, c.termEnd)) {
         if (p.start > today || (c.status === 'paused' && p.start > addDays(today, -40))) break
-        specs.push({ issue: p.start, n: { ...base, source: 'contract_month', billingKey: `month:${c.id}:${p.start}`, periodStart: p.start, periodEnd: p.end, lines: [{ kind: 'plan', description: `${c.planName}, ${fmt(p.start)} – ${fmt(p.end)}`, quantity: 1, unitPriceMinor: price, taxable: true }] } })
+        specs.push({ issue: p.start, n: monthInvoice(billed, p) })
       }
     }
     else {
-      const done = await tx.select({ id: visits.id, on: visits.scheduledOn, type: visits.visitType }).from(visits)
+      const done = await tx.select({ id: visits.id, scheduledOn: visits.scheduledOn, visitType: visits.visitType }).from(visits)
         .where(and(eq(visits.contractId, c.id), eq(visits.status, 'done'), lte(visits.scheduledOn, today))).orderBy(asc(visits.scheduledOn))
-      for (const v of done) {
-        specs.push({ issue: v.on, n: { ...base, visitId: v.id, source: 'visit', billingKey: `visit:${v.id}`, periodStart: v.on, periodEnd: v.on, lines: [{ kind: 'visit', description: `${VISIT_TYPE_LABELS[v.type]} on ${fmt(v.on)} (${c.planName})`, quantity: 1, unitPriceMinor: price, taxable: true }] } })
-      }
+      for (const v of done) specs.push({ issue: v.scheduledOn, n: visitInvoice(billed, v) })
     }
   }
   specs.sort((a, b) => a.issue.localeCompare(b.issue) || a.n.billingKey!.localeCompare(b.n.billingKey!))

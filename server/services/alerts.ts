@@ -8,6 +8,7 @@ import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { recordAudit } from './audit'
 import { enqueueMail } from './mail'
+import { ownerEmails } from './recipients'
 
 const WATERMARK = 'alerts:scan'
 /** Rules of thumb (common practice, no source) unless marked. */
@@ -152,12 +153,12 @@ export async function runAlertScan(opts: { now?: Date } = {}) {
 
 
 async function notifyAct(tx: Tx, a: typeof alerts.$inferSelect) {
-  const owners = await tx.select({ email: users.email }).from(users).where(and(eq(users.companyId, a.companyId), eq(users.role, 'owner'), eq(users.active, true)))
+  const owners = await ownerEmails(tx, a.companyId)
   const techs = a.featureId
     ? await tx.select({ email: users.email }).from(visits).innerJoin(waterFeatures, eq(waterFeatures.siteId, visits.siteId)).innerJoin(users, eq(users.id, visits.technicianId))
       .where(and(eq(waterFeatures.id, a.featureId), sql`${visits.technicianId} is not null`)).orderBy(desc(visits.scheduledOn)).limit(1)
     : []
-  const staff = [...new Set([...owners, ...techs].map(u => u.email))]
+  const staff = [...new Set([...owners, ...techs.map(u => u.email)])]
   const text = `${a.title}\n\nOpen alerts: /alerts\n\nFish are at risk when ammonia or nitrite climb or oxygen falls: act today. Follow product labels; power near water only on a GFCI/RCD protected circuit.`
   await enqueueMail(tx, { companyId: a.companyId, dedupeKey: `alert:${a.id}:act`, to: staff, subject: `Act today: ${a.title.slice(0, 90)}`, text, html: `<p><strong>${escapeHtml(a.title)}</strong></p><p>Open alerts in Rillbook: /alerts</p><p style="font-size:12px">Follow product labels; power near water only on a GFCI/RCD protected circuit.</p>` })
   if (a.featureId) {
@@ -176,10 +177,10 @@ async function queueWatchDigests(tx: Tx, now: Date) {
   const byCompany = new Map<string, { tz: string, titles: string[] }>()
   for (const r of rows) (byCompany.get(r.companyId) ?? byCompany.set(r.companyId, { tz: r.tz, titles: [] }).get(r.companyId)!).titles.push(r.title)
   for (const [companyId, { tz, titles }] of byCompany) {
-    const owners = await tx.select({ email: users.email }).from(users).where(and(eq(users.companyId, companyId), eq(users.role, 'owner'), eq(users.active, true)))
+    const owners = await ownerEmails(tx, companyId)
     const day = localToday(tz, now)
     await enqueueMail(tx, {
-      companyId, dedupeKey: `digest:${companyId}:${day}`, to: owners.map(o => o.email), subject: `${titles.length} things to watch — ${day}`,
+      companyId, dedupeKey: `digest:${companyId}:${day}`, to: owners, subject: `${titles.length} things to watch — ${day}`,
       text: titles.map(t => `- ${t}`).join('\n'), html: `<ul>${titles.map(t => `<li>${escapeHtml(t)}</li>`).join('')}</ul>`,
     })
   }

@@ -33,6 +33,30 @@ export interface BillingRunSummary {
 
 const fmtDate = (d: string) => new Intl.DateTimeFormat('en-US', { month: 'short', day: 'numeric', year: 'numeric', timeZone: 'UTC' }).format(new Date(`${d}T12:00:00Z`))
 
+/** A contract as it is billed: who, in what currency, for which plan at which price (per cadence period). */
+export interface BilledContract { id: string, companyId: string, customerId: string, currency: string, planName: string, priceMinor: number }
+
+const planLine = (c: BilledContract, start: string, end: string) => [{ kind: 'plan' as const, description: `${c.planName}, ${fmtDate(start)} – ${fmtDate(end)}`, quantity: 1, unitPriceMinor: c.priceMinor, taxable: true }]
+const billedBy = (c: BilledContract) => ({ companyId: c.companyId, customerId: c.customerId, contractId: c.id, currency: c.currency })
+
+/** The invoice of a yearly term (billed in advance); its key makes it once per term. */
+export function termInvoice(c: BilledContract, term: { start: string, end: string }): NewInvoice {
+  return { ...billedBy(c), source: 'contract_term', billingKey: `term:${c.id}`, periodStart: term.start, periodEnd: term.end, lines: planLine(c, term.start, term.end) }
+}
+
+/** The invoice of one month of a monthly contract. */
+export function monthInvoice(c: BilledContract, p: { start: string, end: string }): NewInvoice {
+  return { ...billedBy(c), source: 'contract_month', billingKey: `month:${c.id}:${p.start}`, periodStart: p.start, periodEnd: p.end, lines: planLine(c, p.start, p.end) }
+}
+
+/** The invoice of one finished visit of a per-visit contract. */
+export function visitInvoice(c: BilledContract, v: { id: string, scheduledOn: string, visitType: keyof typeof VISIT_TYPE_LABELS }): NewInvoice {
+  return {
+    ...billedBy(c), visitId: v.id, source: 'visit', billingKey: `visit:${v.id}`, periodStart: v.scheduledOn, periodEnd: v.scheduledOn,
+    lines: [{ kind: 'visit', description: `${VISIT_TYPE_LABELS[v.visitType]} on ${fmtDate(v.scheduledOn)} (${c.planName})`, quantity: 1, unitPriceMinor: c.priceMinor, taxable: true }],
+  }
+}
+
 /**
  * The daily billing job: renews auto-renewing terms, ends finished ones, raises the invoices that
  * are due (yearly terms in advance, each month of a monthly contract, each finished per-visit
@@ -128,20 +152,14 @@ async function billingRun(opts: BillingRunOptions) {
       ? new Set((await db.select({ key: invoices.billingKey }).from(invoices).where(and(eq(invoices.companyId, company.id), inArray(invoices.contractId, priced.map(p => p.id))))).map(r => r.key))
       : new Set<string | null>()
     for (const c of priced) {
-      const base = { companyId: company.id, customerId: c.customerId, contractId: c.id, currency: c.currency }
+      const billed = { ...c, companyId: company.id }
       if (c.cadence === 'yearly') {
-        const billingKey = `term:${c.id}`
-        if (keyed.has(billingKey)) continue
-        await raise({ ...base, source: 'contract_term', billingKey, periodStart: c.termStart, periodEnd: c.termEnd,
-          lines: [{ kind: 'plan', description: `${c.planName}, ${fmtDate(c.termStart)} – ${fmtDate(c.termEnd)}`, quantity: 1, unitPriceMinor: c.priceMinor, taxable: true }] })
+        if (!keyed.has(`term:${c.id}`)) await raise(termInvoice(billed, { start: c.termStart, end: c.termEnd }))
         continue
       }
       for (const p of monthlyPeriods(c.termStart, c.termEnd)) {
         if (p.start > today) break
-        const billingKey = `month:${c.id}:${p.start}`
-        if (keyed.has(billingKey)) continue
-        await raise({ ...base, source: 'contract_month', billingKey, periodStart: p.start, periodEnd: p.end,
-          lines: [{ kind: 'plan', description: `${c.planName}, ${fmtDate(p.start)} – ${fmtDate(p.end)}`, quantity: 1, unitPriceMinor: c.priceMinor, taxable: true }] })
+        if (!keyed.has(`month:${c.id}:${p.start}`)) await raise(monthInvoice(billed, p))
       }
     }
     const finishedVisits = await db.select({
@@ -152,9 +170,7 @@ async function billingRun(opts: BillingRunOptions) {
         notExists(db.select({ x: sql`1` }).from(invoices).where(and(eq(invoices.companyId, company.id), eq(invoices.billingKey, sql`'visit:' || ${visits.id}`))))))
       .orderBy(asc(visits.scheduledOn), asc(visits.id))
     for (const v of finishedVisits) {
-      await raise({ companyId: company.id, customerId: v.customerId, contractId: v.contractId, visitId: v.id, currency: v.currency, source: 'visit', billingKey: `visit:${v.id}`,
-        periodStart: v.scheduledOn, periodEnd: v.scheduledOn,
-        lines: [{ kind: 'visit', description: `${VISIT_TYPE_LABELS[v.visitType]} on ${fmtDate(v.scheduledOn)} (${v.planName})`, quantity: 1, unitPriceMinor: v.priceMinor, taxable: true }] })
+      await raise(visitInvoice({ id: v.contractId!, companyId: company.id, customerId: v.customerId, currency: v.currency, planName: v.planName, priceMinor: v.priceMinor }, v))
     }
 
     // 4. The provider's copies of open invoices that do not have one yet (or whose last try failed).

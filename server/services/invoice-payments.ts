@@ -1,5 +1,5 @@
 import { and, asc, eq, inArray } from 'drizzle-orm'
-import { customerContacts, customers, invoiceLines, invoices, paymentEvents } from '../db/schema'
+import { customers, invoiceLines, invoices, paymentEvents } from '../db/schema'
 import { formatTaxRate } from '../../shared/utils/billing'
 import type { SessionUser } from '../utils/auth'
 import { useDb, type Tx } from '../utils/db'
@@ -7,6 +7,7 @@ import { httpError } from '../utils/errors'
 import { paymentsConfigured, publicAppUrl, usePayments, type Stripe } from '../utils/payments'
 import { recordAudit } from './audit'
 import { loadInvoice, queueInvoiceMail } from './invoices'
+import { contactEmails } from './recipients'
 
 type InvoiceRow = typeof invoices.$inferSelect
 
@@ -36,9 +37,8 @@ export async function syncInvoiceToProvider(invoiceId: string): Promise<{ ok: tr
     const [cu] = await db.select().from(customers).where(eq(customers.id, inv.customerId)).limit(1)
     let customerRef = cu!.paymentCustomerId
     if (!customerRef) {
-      const [contact] = await db.select({ email: customerContacts.email }).from(customerContacts)
-        .where(and(eq(customerContacts.customerId, cu!.id), eq(customerContacts.getsInvoices, true))).orderBy(asc(customerContacts.position)).limit(1)
-      const made = await stripe.customers.create({ name: cu!.name, email: contact?.email ?? undefined, metadata: { rillbook_customer_id: cu!.id } }, { idempotencyKey: key('customer', cu!.id) })
+      const [email] = await contactEmails(db, cu!.id, 'invoices')
+      const made = await stripe.customers.create({ name: cu!.name, email, metadata: { rillbook_customer_id: cu!.id } }, { idempotencyKey: key('customer', cu!.id) })
       customerRef = made.id
       await db.update(customers).set({ paymentCustomerId: customerRef }).where(eq(customers.id, cu!.id))
     }

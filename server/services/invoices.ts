@@ -4,7 +4,7 @@ import { INVOICE_STATUS_LABELS, PAYMENT_METHOD_LABELS, type InvoiceDocument, typ
 import { addDays, localToday } from '../../shared/utils/recurrence'
 import { formatTaxRate, invoiceTotals } from '../../shared/utils/billing'
 import { formatMoney } from '../../shared/utils/money'
-import { companies, contracts, customerContacts, customers, invoiceCounters, invoiceLines, invoices, plans } from '../db/schema'
+import { companies, contracts, customers, invoiceCounters, invoiceLines, invoices, plans } from '../db/schema'
 import { isStaff, ownCustomerId, type SessionUser } from '../utils/auth'
 import { useDb, type Database, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
@@ -13,6 +13,7 @@ import { containsPattern } from '../utils/like'
 import { publicAppUrl } from '../utils/payments'
 import { recordAudit } from './audit'
 import { enqueueMail } from './mail'
+import { contactEmails } from './recipients'
 
 type Db = Database | Tx
 type InvoiceRow = typeof invoices.$inferSelect
@@ -65,15 +66,17 @@ export async function listInvoices(actor: SessionUser, q: InvoiceListQuery) {
   const db = useDb()
   const today = await companyToday(actor.companyId)
   const cond = listWhere(actor, q, today)
-  // The customer join is needed for counting only when searching by name.
-  const counted = () => (q.q ? db.select({ n: count() }).from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId)) : db.select({ n: count() }).from(invoices))
+  const sumColumns = { currency: invoices.currency, totalMinor: sql<number>`coalesce(sum(${invoices.totalMinor}), 0)::bigint`, dueMinor: sql<number>`coalesce(sum(case when ${invoices.status} = 'open' then ${invoices.totalMinor} - ${invoices.amountPaidMinor} else 0 end), 0)::bigint` }
+  // Counting and summing need the customer join only when searching by name.
+  const countQuery = db.select({ n: count() }).from(invoices).$dynamic()
+  const sumQuery = db.select(sumColumns).from(invoices).$dynamic()
+  if (q.q) for (const query of [countQuery, sumQuery]) query.innerJoin(customers, eq(customers.id, invoices.customerId))
   const [rows, [total], totals] = await Promise.all([
     db.select(listColumns).from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId))
       .where(cond).orderBy(...listOrder(q)).limit(q.pageSize).offset((q.page - 1) * q.pageSize),
-    counted().where(cond),
+    countQuery.where(cond),
     // What the filtered set adds up to, per currency (a company normally has one).
-    db.select({ currency: invoices.currency, totalMinor: sql<number>`coalesce(sum(${invoices.totalMinor}), 0)::bigint`, dueMinor: sql<number>`coalesce(sum(case when ${invoices.status} = 'open' then ${invoices.totalMinor} - ${invoices.amountPaidMinor} else 0 end), 0)::bigint` })
-      .from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId)).where(cond).groupBy(invoices.currency),
+    sumQuery.where(cond).groupBy(invoices.currency),
   ])
   return {
     rows: rows.map(r => ({ ...r, overdue: r.status === 'open' && r.dueDate != null && r.dueDate < today })),
@@ -117,11 +120,15 @@ async function loadInvoice(actor: SessionUser, id: string, db: Db = useDb()) {
   return row
 }
 
+function invoiceLineRows(db: Db, invoiceId: string) {
+  return db.select().from(invoiceLines).where(eq(invoiceLines.invoiceId, invoiceId)).orderBy(asc(invoiceLines.position))
+}
+
 /** The invoice as it is shown and printed. */
-export async function invoiceDocument(inv: InvoiceRow, db: Db = useDb()): Promise<InvoiceDocument> {
+export async function invoiceDocument(inv: InvoiceRow, db: Db = useDb(), preloadedLines?: Array<typeof invoiceLines.$inferSelect>): Promise<InvoiceDocument> {
   const [c] = await db.select().from(companies).where(eq(companies.id, inv.companyId)).limit(1)
   const [cu] = await db.select().from(customers).where(eq(customers.id, inv.customerId)).limit(1)
-  const lines = await db.select().from(invoiceLines).where(eq(invoiceLines.invoiceId, inv.id)).orderBy(asc(invoiceLines.position))
+  const lines = preloadedLines ?? await invoiceLineRows(db, inv.id)
   const cityLine = [cu!.billingCity, [cu!.billingRegion, cu!.billingPostcode].filter(Boolean).join(' ')].filter(Boolean).join(', ')
   const paidNote = inv.status === 'paid' && inv.paymentMethod
     ? `${PAYMENT_METHOD_LABELS[inv.paymentMethod as keyof typeof PAYMENT_METHOD_LABELS] ?? inv.paymentMethod}${inv.paymentReference ? `, ref. ${inv.paymentReference}` : ''}`
@@ -141,10 +148,10 @@ export async function invoiceDocument(inv: InvoiceRow, db: Db = useDb()): Promis
 export async function getInvoice(actor: SessionUser, id: string) {
   const db = useDb()
   const inv = await loadInvoice(actor, id)
-  const document = await invoiceDocument(inv)
+  const lineRows = await invoiceLineRows(db, id)
+  const document = await invoiceDocument(inv, db, lineRows)
   const today = await companyToday(actor.companyId)
-  const lines = await db.select({ id: invoiceLines.id, kind: invoiceLines.kind, description: invoiceLines.description, quantity: invoiceLines.quantity, unitPriceMinor: invoiceLines.unitPriceMinor, amountMinor: invoiceLines.amountMinor, taxable: invoiceLines.taxable })
-    .from(invoiceLines).where(eq(invoiceLines.invoiceId, id)).orderBy(asc(invoiceLines.position))
+  const lines = lineRows.map(l => ({ id: l.id, kind: l.kind, description: l.description, quantity: l.quantity, unitPriceMinor: l.unitPriceMinor, amountMinor: l.amountMinor, taxable: l.taxable }))
   const [contract] = inv.contractId
     ? await db.select({ id: contracts.id, planName: plans.name, termStart: contracts.termStart, termEnd: contracts.termEnd }).from(contracts).innerJoin(plans, eq(plans.id, contracts.planId)).where(eq(contracts.id, inv.contractId)).limit(1)
     : []
@@ -228,12 +235,6 @@ export async function finalizeInTx(tx: Tx, invoiceId: string, today?: string) {
   return { number, issueDate }
 }
 
-async function invoiceRecipients(db: Db, customerId: string) {
-  const rows = await db.select({ email: customerContacts.email }).from(customerContacts)
-    .where(and(eq(customerContacts.customerId, customerId), eq(customerContacts.getsInvoices, true))).orderBy(asc(customerContacts.position))
-  return [...new Set(rows.flatMap(r => (r.email ? [r.email] : [])))]
-}
-
 const fmtDate = (d: string) => new Intl.DateTimeFormat('en-US', { month: 'long', day: 'numeric', year: 'numeric', timeZone: 'UTC' }).format(new Date(`${d}T12:00:00Z`))
 
 type MailKind = 'invoice' | 'reminder' | 'receipt'
@@ -242,7 +243,7 @@ export async function queueInvoiceMail(tx: Tx, invoiceId: string, kind: MailKind
   const [inv] = await tx.select().from(invoices).where(eq(invoices.id, invoiceId)).limit(1)
   if (!inv?.number) return null
   const doc = await invoiceDocument(inv, tx)
-  const to = await invoiceRecipients(tx, inv.customerId)
+  const to = await contactEmails(tx, inv.customerId, 'invoices')
   const money = (m: number) => formatMoney(m, inv.currency)
   const link = `${publicAppUrl()}/portal/invoices/${inv.id}`
   const pdf = `${publicAppUrl()}/api/invoices/${inv.id}/pdf`

@@ -3,7 +3,7 @@ import type { RequestScheduleInput, ServiceRequestInput } from '../../shared/sch
 import { MAX_REQUEST_PHOTOS, REQUEST_KIND_LABELS, REQUEST_STATUS_LABELS, type RequestStatus } from '../../shared/types/requests'
 import { VISIT_TYPE_LABELS } from '../../shared/types/schedule'
 import { localTimeToInstant, localToday } from '../../shared/utils/recurrence'
-import { companies, customerContacts, customers, photos, serviceRequests, sites, users, visits, waterFeatures } from '../db/schema'
+import { companies, customers, photos, serviceRequests, sites, users, visits, waterFeatures } from '../db/schema'
 import { ownCustomerId, type SessionUser } from '../utils/auth'
 import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
@@ -12,6 +12,7 @@ import { publicAppUrl } from '../utils/payments'
 import { recordAudit } from './audit'
 import { enqueueMail } from './mail'
 import { storePhoto } from './photos'
+import { contactEmails, ownerEmails } from './recipients'
 
 function scope(actor: SessionUser): SQL[] {
   const where: SQL[] = [eq(serviceRequests.companyId, actor.companyId)]
@@ -56,16 +57,6 @@ export async function getRequest(actor: SessionUser, id: string) {
   if (!row) throw httpError(404, 'No such request')
   const photoRows = await db.select({ id: photos.id, caption: photos.caption }).from(photos).where(eq(photos.requestId, id)).orderBy(asc(photos.createdAt))
   return { ...row, photos: photoRows }
-}
-
-async function ownerEmails(tx: Tx, companyId: string) {
-  const rows = await tx.select({ email: users.email }).from(users).where(and(eq(users.companyId, companyId), eq(users.role, 'owner'), eq(users.active, true)))
-  return rows.map(r => r.email)
-}
-
-async function customerEmails(tx: Tx, customerId: string) {
-  const rows = await tx.select({ email: customerContacts.email }).from(customerContacts).where(and(eq(customerContacts.customerId, customerId), eq(customerContacts.getsAlerts, true)))
-  return [...new Set(rows.flatMap(r => (r.email ? [r.email] : [])))]
 }
 
 /** A customer asks for a visit; the owner hears about it by e-mail (through the outbox). */
@@ -126,7 +117,7 @@ export async function addRequestPhoto(actor: SessionUser, requestId: string, inp
 async function answer(tx: Tx, r: typeof serviceRequests.$inferSelect, subject: string, lines: string[]) {
   const link = `${publicAppUrl()}/portal/requests`
   await enqueueMail(tx, {
-    companyId: r.companyId, dedupeKey: `request:${r.id}:${r.status === 'new' ? 'answer' : 'update'}:${Date.now()}`, to: await customerEmails(tx, r.customerId), subject,
+    companyId: r.companyId, dedupeKey: `request:${r.id}:${r.status === 'new' ? 'answer' : 'update'}:${Date.now()}`, to: await contactEmails(tx, r.customerId, 'alerts'), subject,
     text: [...lines, '', `See your requests: ${link}`].join('\n'),
     html: `${lines.map(l => `<p>${escapeHtml(l)}</p>`).join('')}<p><a href="${escapeHtml(link)}">See your requests</a></p>`,
   })

@@ -1,9 +1,10 @@
 import { and, asc, eq, gt, inArray } from 'drizzle-orm'
 import { VISIT_TYPE_LABELS } from '../../shared/types/schedule'
-import { companies, customerContacts, customers, doses, photos, readings, sites, visits, waterFeatures } from '../db/schema'
+import { companies, customers, doses, photos, readings, sites, visits, waterFeatures } from '../db/schema'
 import type { Tx } from '../utils/db'
 import { escapeHtml } from '../utils/html'
 import { enqueueMail } from './mail'
+import { contactEmails } from './recipients'
 
 const STATUS_WORDS = { ok: 'in range', watch: 'worth watching', act: 'needs action' } as const
 
@@ -29,9 +30,7 @@ export async function queueVisitReport(tx: Tx, visitId: string) {
   }).from(visits).innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
     .innerJoin(companies, eq(companies.id, visits.companyId)).where(eq(visits.id, visitId)).limit(1)
   if (!v) return null
-  const contacts = await tx.select({ email: customerContacts.email }).from(customerContacts)
-    .where(and(eq(customerContacts.customerId, v.customerId), eq(customerContacts.getsReports, true)))
-  const to = [...new Set(contacts.flatMap(c => (c.email ? [c.email] : [])))]
+  const to = await contactEmails(tx, v.customerId, 'reports')
   const readingRows = await tx.select({ r: readings, featureName: waterFeatures.name }).from(readings)
     .innerJoin(waterFeatures, eq(waterFeatures.id, readings.featureId)).where(eq(readings.visitId, visitId)).orderBy(asc(readings.takenAt))
   const doseRows = await tx.select({ d: doses, featureName: waterFeatures.name }).from(doses)
