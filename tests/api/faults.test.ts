@@ -59,7 +59,7 @@ describe('backups', () => {
 })
 
 describe('the database restarting under a running app', () => {
-  const cfg = clusterConfig({ name: 'pg-fault', port: 54349, database: 'rillbook_fault', fast: true })
+  const cfg = clusterConfig({ name: 'pg-fault', port: Number(process.env.RILLBOOK_TEST_PG_PORT || 54339) + 10, database: 'rillbook_fault', fast: true })
   const port = 3198
   let server: ChildProcess | undefined
   afterAll(() => {
