@@ -1,6 +1,7 @@
 import ICAL from 'ical.js'
 import { beforeAll, describe, expect, it } from 'vitest'
 import { api, baseUrl, demo, tokenFor } from '../helpers/api'
+import { visitForTessToday } from '../helpers/visits'
 
 let owner: string
 let tess: string
@@ -145,6 +146,10 @@ describe('board, assignment and today', () => {
   })
 
   it('a technician\'s day comes in driving order with legs and an expected end, and can be reordered by hand', async () => {
+    // Whatever the date, her day holds at least three stops at sites a few kilometres apart.
+    await visitForTessToday('order-a', { latitude: 44.16, longitude: -91.36 })
+    await visitForTessToday('order-b', { latitude: 44.12, longitude: -91.30 })
+    await visitForTessToday('order-c', { latitude: 44.19, longitude: -91.40 })
     const day = await api('/api/today', { token: tess })
     expect(day.status).toBe(200)
     expect(day.body.stops.length).toBeGreaterThan(1)
@@ -182,6 +187,7 @@ describe('calendar feeds (RFC 5545, parsed with ical.js)', () => {
     expect(String(first.getFirstPropertyValue('dtstamp'))).toMatch(/Z$/)
 
     // Cancel a visit of Tess's by pausing its contract: it stays in the feed as CANCELLED, same UID.
+    await visitForTessToday('feed')
     const uidsBefore = new Set(events.map(e => String(e.getFirstPropertyValue('uid'))))
     const day = (await api('/api/today', { token: tess })).body
     const visit = await api(`/api/visits/${day.stops[0].id}`, { token: owner })

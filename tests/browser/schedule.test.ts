@@ -2,6 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser } from 'playwright-core'
 import { api, baseUrl, demo, tokenFor } from '../helpers/api'
 import { launch, shot, signInThroughForm, VIEWPORTS } from '../helpers/browser'
+import { visitForTessToday } from '../helpers/visits'
 
 let browser: Browser
 beforeAll(async () => { browser = await launch() })
@@ -72,6 +73,9 @@ describe('plans, contracts and the schedule in the browser', () => {
   }
 
   it('a technician sees today in driving order on a phone', async () => {
+    // Whatever the date, her day holds two stops.
+    await visitForTessToday('phone-a', { latitude: 44.16, longitude: -91.36 })
+    await visitForTessToday('phone-b', { latitude: 44.12, longitude: -91.30 })
     const context = await browser.newContext({ viewport: VIEWPORTS.phone, isMobile: true, hasTouch: true })
     const page = await context.newPage()
     await signInThroughForm(page, demo.tess)
