@@ -336,7 +336,7 @@ export async function startPaymentFake({
     }
   }
 
-  function createInvoice(p, ctx) {
+  function createInvoice(p) {
     only(p, ['customer', 'collection_method', 'days_until_due', 'due_date', 'currency', 'description', 'metadata', 'auto_advance',
       'pending_invoice_items_behavior', ...INVOICE_IGNORED])
     const customerId = str(p, 'customer')

@@ -17,7 +17,6 @@ export class RecurrenceRuleError extends RangeError {
 }
 
 const MAX_OCCURRENCES_PER_TERM = 400
-const FREQ_NAMES = ['YEARLY', 'MONTHLY', 'WEEKLY', 'DAILY'] as const
 
 /**
  * Checks an RRULE body (no DTSTART, no UNTIL: the contract term supplies both) and returns it in

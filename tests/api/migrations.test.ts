@@ -1,5 +1,4 @@
-import { afterAll, describe, expect, it } from 'vitest'
-import { inject } from 'vitest'
+import { afterAll, describe, expect, it, inject } from 'vitest'
 import pg from 'pg'
 // @ts-expect-error plain ESM script without types
 import { runMigrations } from '../../scripts/migrate.mjs'

@@ -144,12 +144,12 @@ export function mergeRanges(base: RangeTable, overrides?: RangeTable | null): Ra
       if (v === undefined) continue
       merged[bound] = v
       const src = o.boundSources?.[bound] ?? (o.source !== undefined ? { source: o.source, sourceKind: o.sourceKind } : undefined)
-      if (src) boundSources[bound] = src
-      else delete boundSources[bound]
+      boundSources[bound] = src
     }
     if (o.source !== undefined) merged.source = o.source
     if (o.sourceKind !== undefined) merged.sourceKind = o.sourceKind
-    if (Object.keys(boundSources).length > 0) merged.boundSources = boundSources
+    const kept = Object.fromEntries(Object.entries(boundSources).filter(([, s]) => s !== undefined)) as Partial<Record<RangeBound, BoundSource>>
+    if (Object.keys(kept).length > 0) merged.boundSources = kept
     else delete merged.boundSources
     out[p] = merged
   }

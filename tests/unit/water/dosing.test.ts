@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest'
 import type { DosingSuggestion, WaterReading } from '../../../shared/types/water'
 import {
   BICARBONATE_G_PER_1000L_PER_DKH, bicarbonateForKH, chloramineAmmoniaNMgL, CHLORIDE_MASS_FRACTION_NACL, dailyWaterLossMm,
-  dechlorinatorDose, DEFAULT_PROFILES, doseFromLabelRate, dosingSuggestions, EVAPORATION_ALLOWANCE_MM_PER_DAY, gramsToPounds,
+  dechlorinatorDose, DEFAULT_PROFILES, doseFromLabelRate, dosingSuggestions, EVAPORATION_ALLOWANCE_MM_PER_DAY,
   kgToPounds, MAX_KH_RISE_DKH_PER_DAY, MAX_WATER_CHANGE_FRACTION, mgLCaCO3ToDkh, mmToTopUpLitres, NAHCO3_MG_PER_MG_CACO3,
   saltGLToChlorideMgL, saltToTarget, thiosulfatePerChlorine, topUpLitresToMm, turnoverPerHour, TURNOVER_TARGET_PER_HOUR,
   usGallonsToLitres, waterChangeFraction, waterChangesNeeded, waterfallFlowLph, WATERFALL_US_GPH_PER_INCH, WaterInputError,
