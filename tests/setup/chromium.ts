@@ -1,5 +1,5 @@
 // @ts-expect-error plain ESM script without types
-import { ensureChromium } from '../../scripts/install-browser.mjs'
+import { ensureChromium } from '../../scripts/install-test-tools.mjs'
 
 export function setup() {
   ensureChromium()
