@@ -38,11 +38,15 @@ export default defineNuxtConfig({
         signUp: false,
         getSession: { path: '/session', method: 'get' },
       },
+      // The session token lives only in the server's HttpOnly `auth.token` cookie (set at sign-in,
+      // see server/utils/auth.ts). nuxt-auth keeps a non-secret marker instead ("cookie", from the
+      // sign-in answer's `session`) in its own script-readable cookie, and sends it in a header the
+      // server ignores; the browser sends the HttpOnly cookie with every same-site request.
       token: {
-        signInResponseTokenPointer: '/token',
-        type: 'Bearer',
-        cookieName: 'auth.token',
-        headerName: 'Authorization',
+        signInResponseTokenPointer: '/session',
+        type: '',
+        cookieName: 'auth.session',
+        headerName: 'X-Rillbook-Session',
         maxAgeInSeconds: 12 * 60 * 60,
         sameSiteAttribute: 'lax',
         // Secure when served over TLS (set RILLBOOK_SECURE_COOKIES=1 when building for HTTPS).

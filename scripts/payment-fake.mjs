@@ -8,13 +8,15 @@
 // under /__fake/ (events, redelivery, outage, reset, health). Nothing leaves the machine except
 // webhook POSTs to the configured URL.
 //   node scripts/payment-fake.mjs --port 12111 --dir .data/payments \
-//     --webhook-url http://127.0.0.1:3000/api/webhooks/payments --webhook-secret whsec_... [--verbose]
+//     --webhook-url http://127.0.0.1:3000/api/webhooks/payments [--webhook-secret <secret>] [--verbose]
 // Defaults come from RILLBOOK_PAYMENTS_PORT (12111), RILLBOOK_PAYMENTS_DIR (.data/payments),
 // RILLBOOK_PAYMENTS_WEBHOOK_URL, STRIPE_WEBHOOK_SECRET and RILLBOOK_PAYMENTS_PUBLIC_URL. State is
-// kept in <dir>/state.json, so provider ids stay valid across restarts. As a command it writes its
-// pid to <dir>/fake.pid and stops on SIGTERM/SIGINT.
+// kept in <dir>/state.json, so provider ids stay valid across restarts. Without a webhook secret
+// it signs with this install's own one, <dir>/webhook-secret (random, made on the first start;
+// see installWebhookSecret). As a command it writes its pid to <dir>/fake.pid and stops on
+// SIGTERM/SIGINT.
 import { createHash, createHmac, randomBytes } from 'node:crypto'
-import { existsSync, mkdirSync, readFileSync } from 'node:fs'
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
 import http from 'node:http'
 import https from 'node:https'
 import { join, resolve } from 'node:path'
@@ -27,6 +29,35 @@ const MAX_ATTEMPTS = 8
 const IDEMPOTENCY_TTL_S = 24 * 3600
 const ALNUM = 'ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789'
 const LOOPBACK = new Set(['127.0.0.1', '::1', '::ffff:127.0.0.1'])
+
+/**
+ * This install's webhook signing secret for the local fake: read from `<dir>/webhook-secret`, or
+ * made at random (32 bytes) on the first start and written there (mode 0600, never replaced by a
+ * second start racing the first). The app and the fake both get it from `scripts/start.mjs`, so
+ * no two installs share one and none is written in the source.
+ * @param {string} dir the fake's state folder (inside the git-ignored `.data/`)
+ * @returns {string}
+ */
+export function installWebhookSecret(dir) {
+  const file = join(dir, 'webhook-secret')
+  const usable = /^whsec_[\w-]{32,}$/
+  const read = () => (existsSync(file) ? readFileSync(file, 'utf8').trim() : '')
+  const found = read()
+  if (usable.test(found)) return found
+  mkdirSync(dir, { recursive: true })
+  const made = `whsec_${randomBytes(32).toString('base64url')}`
+  try {
+    // A missing or unreadable file: write a new one, exclusively unless it is there but unusable.
+    writeFileSync(file, `${made}\n`, { mode: 0o600, flag: found || existsSync(file) ? 'w' : 'wx' })
+  }
+  catch (err) {
+    if (err?.code !== 'EEXIST') throw err
+    const theirs = read()
+    if (usable.test(theirs)) return theirs
+    throw err
+  }
+  return made
+}
 
 const now = () => Math.floor(Date.now() / 1000)
 
@@ -208,7 +239,7 @@ export async function startPaymentFake({
   port = 0, host = '127.0.0.1', dir, webhookUrl, webhookSecret, publicBaseUrl, apiKey, log, retryBaseMs = 500,
 }) {
   if (!dir) throw new Error('startPaymentFake: dir is required')
-  if (webhookUrl && !webhookSecret) throw new Error('a webhook URL needs a webhook secret (whsec_…)')
+  if (webhookUrl && !webhookSecret) throw new Error('a webhook URL needs a webhook secret')
   const outDir = resolve(dir)
   mkdirSync(outDir, { recursive: true })
   const statePath = join(outDir, 'state.json')
@@ -753,7 +784,7 @@ async function main() {
     port,
     dir,
     webhookUrl: argValue('--webhook-url') ?? process.env.RILLBOOK_PAYMENTS_WEBHOOK_URL,
-    webhookSecret: argValue('--webhook-secret') ?? process.env.STRIPE_WEBHOOK_SECRET,
+    webhookSecret: argValue('--webhook-secret') ?? process.env.STRIPE_WEBHOOK_SECRET ?? installWebhookSecret(dir),
     publicBaseUrl: argValue('--public-url') ?? process.env.RILLBOOK_PAYMENTS_PUBLIC_URL,
     apiKey: argValue('--api-key'),
     log: verbose ? msg => process.stderr.write(`${msg}\n`) : undefined,

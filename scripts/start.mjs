@@ -11,7 +11,7 @@ import { dirname, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { start as startDb } from './db.mjs'
 import { startMailCatcher } from './mail-catcher.mjs'
-import { startPaymentFake } from './payment-fake.mjs'
+import { installWebhookSecret, startPaymentFake } from './payment-fake.mjs'
 import { runMigrations } from './migrate.mjs'
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..')
@@ -61,9 +61,12 @@ async function main() {
     if (await portAnswers('127.0.0.1', paymentsPort)) {
       throw new Error(`something already listens on 127.0.0.1:${paymentsPort}; stop it, set RILLBOOK_PAYMENTS_PORT, or set STRIPE_SECRET_KEY for the real service`)
     }
-    const secret = process.env.STRIPE_WEBHOOK_SECRET || 'whsec_rillbook_local_demo'
+    const paymentsDir = resolve(root, process.env.RILLBOOK_PAYMENTS_DIR || '.data/payments')
+    // The fake and the app share this install's own signing secret (random, made on the first
+    // start, kept in the git-ignored data folder), unless one is configured.
+    const secret = process.env.STRIPE_WEBHOOK_SECRET || installWebhookSecret(paymentsDir)
     payments = await startPaymentFake({
-      port: paymentsPort, dir: resolve(root, process.env.RILLBOOK_PAYMENTS_DIR || '.data/payments'),
+      port: paymentsPort, dir: paymentsDir,
       webhookUrl: `http://${host}:${port}/api/webhooks/payments`, webhookSecret: secret, publicBaseUrl: `http://127.0.0.1:${paymentsPort}`,
     })
     Object.assign(env, { STRIPE_SECRET_KEY: 'sk_test_rillbook_local', STRIPE_WEBHOOK_SECRET: secret, STRIPE_API_URL: payments.url })

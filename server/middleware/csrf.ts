@@ -1,8 +1,9 @@
 // Cross-site request forgery: a change made with the session cookie must come from this site.
 // Browsers send Origin (and Sec-Fetch-Site) with every POST/PUT/PATCH/DELETE; a request from
 // another site is refused. Calls that carry their own credential (an Authorization header) or
-// a signature (the payment webhook) are not driven by the cookie and pass. OWASP's "verifying
-// origin with standard headers".
+// a signature (the payment webhook) are not driven by the cookie and pass (the guard never reads
+// the cookie when an Authorization header is present). OWASP's "verifying origin with standard
+// headers"; the session cookie is also SameSite=Lax.
 const SAFE = new Set(['GET', 'HEAD', 'OPTIONS'])
 
 export default defineEventHandler((event) => {

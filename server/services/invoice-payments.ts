@@ -1,6 +1,7 @@
 import { and, asc, eq, inArray } from 'drizzle-orm'
 import { customers, invoiceLines, invoices, paymentEvents } from '../db/schema'
 import { formatTaxRate } from '../../shared/utils/billing'
+import type { PaymentMismatch } from '../../shared/types/billing'
 import type { SessionUser } from '../utils/auth'
 import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
@@ -110,14 +111,15 @@ export async function paymentPageUrl(actor: SessionUser, invoiceId: string) {
   return { url: r.url }
 }
 
-type EventOutcome = 'applied' | 'duplicate' | `ignored: ${string}`
+type EventOutcome = 'applied' | 'duplicate' | `ignored: ${string}` | `recorded: ${string}`
 
+/** The event's invoice, locked for the rest of the transaction (two events for one invoice apply in turn). */
 async function findInvoice(tx: Tx, obj: { id?: string, metadata?: Record<string, string> | null }) {
   const ours = obj.metadata?.rillbook_invoice_id
-  const byRef = obj.id ? await tx.select().from(invoices).where(eq(invoices.providerInvoiceId, obj.id)).limit(1) : []
+  const byRef = obj.id ? await tx.select().from(invoices).where(eq(invoices.providerInvoiceId, obj.id)).limit(1).for('update') : []
   if (byRef[0]) return byRef[0]
   if (ours && /^[0-9a-f-]{36}$/i.test(ours)) {
-    const [row] = await tx.select().from(invoices).where(eq(invoices.id, ours)).limit(1)
+    const [row] = await tx.select().from(invoices).where(eq(invoices.id, ours)).limit(1).for('update')
     return row ?? null
   }
   return null
@@ -130,7 +132,7 @@ async function findInvoice(tx: Tx, obj: { id?: string, metadata?: Record<string,
  */
 export async function applyPaymentEvent(event: Stripe.Event): Promise<{ outcome: EventOutcome, invoiceId: string | null }> {
   return useDb().transaction(async (tx) => {
-    const obj = (event.data?.object ?? {}) as { object?: string, id?: string, metadata?: Record<string, string>, amount_paid?: number, status_transitions?: { paid_at?: number | null }, last_payment_error?: { message?: string } | null }
+    const obj = (event.data?.object ?? {}) as { object?: string, id?: string, metadata?: Record<string, string>, amount_paid?: number, currency?: string, status_transitions?: { paid_at?: number | null }, last_payment_error?: { message?: string } | null }
     const [claimed] = await tx.insert(paymentEvents).values({ id: event.id, type: event.type, outcome: 'pending', payload: event as unknown as Record<string, unknown> })
       .onConflictDoNothing().returning({ id: paymentEvents.id })
     if (!claimed) return { outcome: 'duplicate' as const, invoiceId: null }
@@ -150,6 +152,20 @@ export async function applyPaymentEvent(event: Stripe.Event): Promise<{ outcome:
         if (inv.status !== 'open') {
           await audit('invoice.paid_while_closed', { status: inv.status })
           return done(`ignored: invoice is ${inv.status}; refund or reopen it by hand`, inv.id)
+        }
+        // Paid in full only when the provider took exactly what is due, in the invoice's currency.
+        // Anything else is recorded for the owner and the invoice stays open (an underpayment
+        // counts towards what is paid; an overpayment or another currency counts nothing).
+        const due = inv.totalMinor - inv.amountPaidMinor
+        const paid = Number.isSafeInteger(obj.amount_paid) ? obj.amount_paid! : null
+        const paidCurrency = typeof obj.currency === 'string' && obj.currency ? obj.currency.toUpperCase() : inv.currency
+        if (paid !== due || paidCurrency !== inv.currency) {
+          const counted = paidCurrency === inv.currency && paid !== null && paid > 0 && paid < due ? paid : 0
+          const mismatch: PaymentMismatch = { eventId: event.id, paidMinor: paid, paidCurrency, dueMinor: due, countedMinor: counted, at: new Date().toISOString() }
+          await tx.update(invoices).set({ amountPaidMinor: inv.amountPaidMinor + counted, paymentMismatch: mismatch })
+            .where(and(eq(invoices.id, inv.id), eq(invoices.status, 'open')))
+          await audit('invoice.paid_amount_mismatch', { paid, paidCurrency, due, counted })
+          return done('recorded: the amount paid does not match what is due; left open for the owner', inv.id)
         }
         const paidAt = obj.status_transitions?.paid_at ? new Date(obj.status_transitions.paid_at * 1000) : new Date()
         await tx.update(invoices).set({ status: 'paid', paidAt, amountPaidMinor: inv.totalMinor, paymentMethod: 'card', lastPaymentError: null })

@@ -165,7 +165,7 @@ export async function getInvoice(actor: SessionUser, id: string) {
     overdue: inv.status === 'open' && inv.dueDate != null && inv.dueDate < today, today, document,
   }
   if (!isStaff(actor)) return { ...base, staff: null }
-  return { ...base, staff: { billingKey: inv.billingKey, reminderStage: inv.reminderStage, providerInvoiceId: inv.providerInvoiceId, providerSyncedAt: inv.providerSyncedAt, providerError: inv.providerError, finalizedAt: inv.finalizedAt } }
+  return { ...base, staff: { billingKey: inv.billingKey, reminderStage: inv.reminderStage, providerInvoiceId: inv.providerInvoiceId, providerSyncedAt: inv.providerSyncedAt, providerError: inv.providerError, paymentMismatch: inv.paymentMismatch, finalizedAt: inv.finalizedAt } }
 }
 
 /** Replaces a draft's lines and recomputes its totals from them (tax rounded once; see shared/utils/billing). */

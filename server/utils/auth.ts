@@ -24,6 +24,31 @@ export function sessionTtlMs() {
   return Number(process.env.RILLBOOK_SESSION_TTL_HOURS || 12) * 3600_000
 }
 
+/**
+ * The session cookie: set by the server at sign-in, HttpOnly (page script never sees the token),
+ * SameSite=Lax, Secure when the request came over HTTPS. nuxt-auth in the browser keeps only a
+ * non-secret marker cookie of its own (see nuxt.config.ts); scripts send `Authorization: Bearer`.
+ */
+export const SESSION_COOKIE = 'auth.token'
+
+/** HTTPS as the browser sees it: the request itself, or the proxy's X-Forwarded-Proto when proxies are trusted. */
+function servedOverHttps(event: H3Event) {
+  if (process.env.RILLBOOK_SECURE_COOKIES === '1') return true
+  return getRequestProtocol(event, { xForwardedProto: process.env.RILLBOOK_TRUST_PROXY === '1' }) === 'https'
+}
+
+function sessionCookieOptions(event: H3Event) {
+  return { httpOnly: true, sameSite: 'lax' as const, secure: servedOverHttps(event), path: '/' }
+}
+
+export function setSessionCookie(event: H3Event, token: string) {
+  setCookie(event, SESSION_COOKIE, token, { ...sessionCookieOptions(event), maxAge: Math.floor(sessionTtlMs() / 1000) })
+}
+
+export function clearSessionCookie(event: H3Event) {
+  deleteCookie(event, SESSION_COOKIE, sessionCookieOptions(event))
+}
+
 /** Starts a session; returns the opaque token the client sends back as `Authorization: Bearer`. */
 export async function createSession(userId: string, event: H3Event) {
   const token = randomBytes(32).toString('base64url')
@@ -41,20 +66,28 @@ export function requestIp(event: H3Event) {
   return getRequestIP(event, { xForwardedFor: process.env.RILLBOOK_TRUST_PROXY === '1' }) ?? 'unknown'
 }
 
-function tokenFrom(event: H3Event): string | null {
+/**
+ * The token from `Authorization: Bearer` or, when there is no Authorization header at all, from
+ * the session cookie. A request with an Authorization header is never signed in by the cookie:
+ * the CSRF middleware lets such requests through because they carry their own credential.
+ */
+function tokenFrom(event: H3Event): { token: string, from: 'header' | 'cookie' } | null {
   const header = getRequestHeader(event, 'authorization')
-  if (header?.startsWith('Bearer ')) return header.slice(7).trim() || null
-  const cookie = getCookie(event, 'auth.token')
-  if (cookie) return cookie.startsWith('Bearer ') ? cookie.slice(7) : cookie
-  return null
+  if (header !== undefined) {
+    const token = header.startsWith('Bearer ') ? header.slice(7).trim() : ''
+    return token ? { token, from: 'header' } : null
+  }
+  const cookie = getCookie(event, SESSION_COOKIE)
+  return cookie ? { token: cookie, from: 'cookie' } : null
 }
 
 /** The signed-in user, or null. Looked up once per request. */
 export async function getSessionUser(event: H3Event): Promise<SessionUser | null> {
   if (event.context.sessionUser !== undefined) return event.context.sessionUser
-  const token = tokenFrom(event)
+  const presented = tokenFrom(event)
   let found: SessionUser | null = null
-  if (token) {
+  if (presented) {
+    const { token } = presented
     const [row] = await useDb()
       .select({
         id: users.id, email: users.email, name: users.name, role: users.role,
@@ -70,6 +103,8 @@ export async function getSessionUser(event: H3Event): Promise<SessionUser | null
       ))
       .limit(1)
     found = row ?? null
+    // An expired or revoked session's cookie is cleared rather than sent on every request.
+    if (!found && presented.from === 'cookie') clearSessionCookie(event)
   }
   event.context.sessionUser = found
   return found

@@ -24,6 +24,23 @@ export const PAYMENT_METHOD_LABELS: Record<OfflinePaymentMethod | 'card', string
   cheque: 'Cheque', bank_transfer: 'Bank transfer', cash: 'Cash', card: 'Card (online)',
 }
 
+/**
+ * An online payment whose amount did not match what was due (`invoice.paid` from the provider):
+ * the invoice is not marked paid; the owner sees this and resolves it. `countedMinor` is what was
+ * added to the amount paid (an underpayment in the invoice's currency; nothing otherwise).
+ */
+export interface PaymentMismatch {
+  eventId: string
+  /** What the provider says was paid, in `paidCurrency`; null when the event did not say. */
+  paidMinor: number | null
+  paidCurrency: string
+  /** What was due on the invoice when the event arrived, in the invoice's currency. */
+  dueMinor: number
+  countedMinor: number
+  /** When it was recorded (ISO timestamp). */
+  at: string
+}
+
 /** Everything needed to show or print one invoice. Money in integer minor units of `currency`. */
 export interface InvoiceDocument {
   number: string | null

@@ -1,7 +1,9 @@
 // Invoice and recurring-revenue arithmetic: pure and integer-only, shared by the server, the
 // screens (a draft's totals as lines are typed) and the tests.
 import { DateTime } from 'luxon'
+import type { PaymentMismatch } from '../types/billing'
 import type { BillingCadence } from '../types/schedule'
+import { formatMoney } from './money'
 import type { LocalDate } from './recurrence'
 
 /**
@@ -124,3 +126,13 @@ export function monthlyValueMinor(c: { cadence: BillingCadence, priceMinor: numb
 export const RENEWAL_LEAD_DAYS = 30
 /** A yearly term's invoice is raised this many days before the term starts (at once for a term under way). */
 export const TERM_INVOICE_LEAD_DAYS = 30
+
+/** The owner's words for an online payment that did not match what was due (invoice page, home). */
+export function describePaymentMismatch(m: PaymentMismatch, currency: string): string {
+  const due = formatMoney(m.dueMinor, currency)
+  if (m.paidMinor === null) return `The payment provider reported this invoice paid without saying how much; ${due} was due. Nothing was counted: check the payment with the provider, then record it.`
+  const paid = formatMoney(m.paidMinor, m.paidCurrency)
+  if (m.paidCurrency !== currency) return `The payment provider took ${paid}, not in the invoice's currency; ${due} was due. Nothing was counted: check the payment with the provider, then record it.`
+  if (m.countedMinor > 0) return `The payment provider took ${paid}, but ${due} was due. ${paid} is counted as paid and ${formatMoney(m.dueMinor - m.countedMinor, currency)} is still due: collect the rest or write it off.`
+  return `The payment provider took ${paid}, but ${due} was due. Nothing was counted: check the payment with the provider (refund any difference), then record it.`
+}

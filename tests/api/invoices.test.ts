@@ -180,7 +180,7 @@ describe('paying online and the payment webhook', () => {
   })
   async function openInvoice() {
     const d = await draft()
-    return (await act(d.id, { action: 'finalize' })).body as { id: string, number: string }
+    return (await act(d.id, { action: 'finalize' })).body as { id: string, number: string, totalMinor: number, currency: string }
   }
   const row = async (id: string) => (await testDb().select().from(schema.invoices).where(eq(schema.invoices.id, id)))[0]!
   const eventFor = (type: string, inv: { id: string }, extra: Record<string, unknown> = {}) => JSON.stringify({
@@ -202,7 +202,7 @@ describe('paying online and the payment webhook', () => {
 
   it('applies an event once: a repeat is acknowledged and changes nothing; a late failure cannot undo a payment', async () => {
     const inv = await openInvoice()
-    const payload = eventFor('invoice.paid', inv)
+    const payload = eventFor('invoice.paid', inv, { amount_paid: inv.totalMinor, currency: inv.currency.toLowerCase() })
     const first = await post(payload, signed(payload))
     expect(first.status).toBe(200)
     expect(await first.json()).toMatchObject({ received: true, outcome: 'applied', invoiceId: inv.id })
@@ -216,6 +216,46 @@ describe('paying online and the payment webhook', () => {
     const late = eventFor('invoice.payment_failed', inv, { last_payment_error: { message: 'Your card was declined.' } })
     expect(await (await post(late, signed(late))).json()).toMatchObject({ outcome: 'ignored: invoice is paid' })
     expect((await row(inv.id)).status).toBe('paid')
+  })
+
+  it('an invoice.paid for another amount or currency does not mark it paid: it is recorded and shown to the owner', async () => {
+    const receipts = async (id: string) => (await testDb().select().from(schema.outbox).where(eq(schema.outbox.dedupeKey, `invoice:${id}:receipt`))).length
+    const send = async (inv: { id: string }, extra: Record<string, unknown>) => {
+      const payload = eventFor('invoice.paid', inv, extra)
+      const r = await post(payload, signed(payload))
+      expect(r.status).toBe(200)
+      return { body: await r.json(), eventId: JSON.parse(payload).id as string }
+    }
+    // Short by $10.00: the $10.00 less is counted as paid, the rest stays due.
+    const short = await openInvoice()
+    const sent = await send(short, { amount_paid: short.totalMinor - 1000, currency: 'usd' })
+    expect(sent.body).toMatchObject({ received: true, invoiceId: short.id })
+    expect(sent.body.outcome).toMatch(/^recorded: /)
+    expect(await row(short.id)).toMatchObject({ status: 'open', paidAt: null, amountPaidMinor: short.totalMinor - 1000 })
+    expect((await row(short.id)).paymentMismatch).toMatchObject({ eventId: sent.eventId, paidMinor: short.totalMinor - 1000, paidCurrency: 'USD', dueMinor: short.totalMinor, countedMinor: short.totalMinor - 1000 })
+    expect(await receipts(short.id)).toBe(0)
+    const page = await api(`/api/invoices/${short.id}`, { token: owner })
+    expect(page.body).toMatchObject({ status: 'open', amountDueMinor: 1000, staff: { paymentMismatch: { paidMinor: short.totalMinor - 1000, dueMinor: short.totalMinor } } })
+    // More than is due, the right amount in another currency, or no amount at all: nothing counted.
+    const over = await openInvoice()
+    await send(over, { amount_paid: over.totalMinor + 500, currency: 'usd' })
+    const euros = await openInvoice()
+    await send(euros, { amount_paid: euros.totalMinor, currency: 'eur' })
+    const silent = await openInvoice()
+    await send(silent, {})
+    for (const [inv, paidMinor, paidCurrency] of [[over, over.totalMinor + 500, 'USD'], [euros, euros.totalMinor, 'EUR'], [silent, null, 'USD']] as const) {
+      expect(await row(inv.id)).toMatchObject({ status: 'open', amountPaidMinor: 0, paidAt: null })
+      expect((await row(inv.id)).paymentMismatch).toMatchObject({ paidMinor, paidCurrency, dueMinor: inv.totalMinor, countedMinor: 0 })
+      expect(await receipts(inv.id)).toBe(0)
+    }
+    // The owner's home lists each one with what happened; a customer never sees it.
+    const home = await api('/api/overview', { token: owner })
+    const listed = home.body.paymentsToCheck as Array<{ id: string, number: string, mismatch: { paidMinor: number | null } }>
+    for (const inv of [short, over, euros, silent]) expect(listed.find(p => p.id === inv.id), inv.number).toBeTruthy()
+    expect((await api(`/api/invoices/${short.id}`, { token: priya })).body.staff).toBeNull()
+    // Once the owner records the rest, it is paid and leaves the list.
+    expect((await act(short.id, { action: 'record_payment', method: 'bank_transfer', reference: 'rest', paidOn: page.body.issueDate })).body.status).toBe('paid')
+    expect(((await api('/api/overview', { token: owner })).body.paymentsToCheck as Array<{ id: string }>).some(p => p.id === short.id)).toBe(false)
   })
 
   it('the customer pays through the provider\'s page: a declined card leaves it open, a good card pays it', async () => {

@@ -1,4 +1,4 @@
-import { mkdtempSync, rmSync } from 'node:fs'
+import { mkdtempSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs'
 import { createServer, type Server } from 'node:http'
 import type { AddressInfo } from 'node:net'
 import { tmpdir } from 'node:os'
@@ -6,7 +6,7 @@ import { join } from 'node:path'
 import Stripe from 'stripe'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 // @ts-expect-error plain ESM script without types
-import { API_VERSION, parseForm, startPaymentFake } from '../../scripts/payment-fake.mjs'
+import { API_VERSION, installWebhookSecret, parseForm, startPaymentFake } from '../../scripts/payment-fake.mjs'
 
 // The local payment-provider fake, driven through the provider's real Node SDK, with a tiny
 // webhook receiver standing in for the app.
@@ -288,5 +288,37 @@ describe('payment-provider fake', () => {
     expect((await stripe.customers.retrieve(customer.id)).id).toBe(customer.id)
     const next = await openInvoice()
     expect(Number(next.invoice.number!.slice(5))).toBe(Number(invoice.number!.slice(5)) + 1)
+  })
+})
+
+describe('the install\'s webhook secret', () => {
+  it('is made at random on the first start, kept in the data folder (0600) and reused, never a constant', () => {
+    const a = mkdtempSync(join(tmpdir(), 'rillbook-secret-'))
+    const b = mkdtempSync(join(tmpdir(), 'rillbook-secret-'))
+    try {
+      const first = installWebhookSecret(join(a, 'payments'))
+      expect(first).toMatch(/^whsec_[\w-]{40,}$/)
+      expect(readFileSync(join(a, 'payments', 'webhook-secret'), 'utf8').trim()).toBe(first)
+      expect(statSync(join(a, 'payments', 'webhook-secret')).mode & 0o777).toBe(0o600)
+      // The next start of the same install signs with the same secret; another install has its own.
+      expect(installWebhookSecret(join(a, 'payments'))).toBe(first)
+      expect(installWebhookSecret(join(b, 'payments'))).not.toBe(first)
+      // An emptied or damaged file is replaced by a fresh random secret.
+      writeFileSync(join(a, 'payments', 'webhook-secret'), 'whsec_short\n')
+      const fresh = installWebhookSecret(join(a, 'payments'))
+      expect(fresh).not.toBe(first)
+      expect(fresh).toMatch(/^whsec_[\w-]{40,}$/)
+    }
+    finally {
+      rmSync(a, { recursive: true, force: true })
+      rmSync(b, { recursive: true, force: true })
+    }
+  })
+
+  it('has no default written in the start script, the server or the configuration', () => {
+    const root = join(import.meta.dirname, '../..')
+    for (const file of ['scripts/start.mjs', 'scripts/payment-fake.mjs', 'server/utils/payments.ts', 'server/api/webhooks/payments.post.ts', 'nuxt.config.ts']) {
+      expect(readFileSync(join(root, file), 'utf8'), file).not.toMatch(/whsec_\w{4,}/)
+    }
   })
 })

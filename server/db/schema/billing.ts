@@ -1,5 +1,5 @@
 import { bigint, boolean, char, date, index, integer, jsonb, numeric, pgEnum, pgTable, primaryKey, smallint, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core'
-import { INVOICE_SOURCES, INVOICE_STATUSES, LINE_KINDS } from '../../../shared/types/billing'
+import { INVOICE_SOURCES, INVOICE_STATUSES, LINE_KINDS, type PaymentMismatch } from '../../../shared/types/billing'
 import { id, timestamps } from './columns'
 import { companies } from './companies'
 import { contracts } from './contracts'
@@ -50,6 +50,8 @@ export const invoices = pgTable('invoices', {
   paymentReference: text('payment_reference').notNull().default(''),
   /** The provider's last word on a failed payment attempt. */
   lastPaymentError: text('last_payment_error'),
+  /** The last online payment whose amount did not match what was due (the invoice stayed open). */
+  paymentMismatch: jsonb('payment_mismatch').$type<PaymentMismatch>(),
   /** Overdue reminders sent so far: 0, then 1 (7 days), 2 (14 days), 3 (30 days). */
   reminderStage: smallint('reminder_stage').notNull().default(0),
   /** The provider's copy: set once created there; `providerSyncedAt` once it is finalized there. */
