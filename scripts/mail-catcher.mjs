@@ -15,8 +15,8 @@ import { SMTPServer } from 'smtp-server'
 const HOST = '127.0.0.1'
 
 /** Sortable, file-name-safe id: time first so the newest sorts last. Matches /^[\w-]+$/. */
-function messageFileId() {
-  return `${Date.now().toString().padStart(15, '0')}-${randomBytes(4).toString('hex')}`
+function messageFileId(at) {
+  return `${at.getTime().toString().padStart(15, '0')}-${randomBytes(4).toString('hex')}`
 }
 
 function addressList(value) {
@@ -45,10 +45,12 @@ export function startMailCatcher({ port, dir, log = msg => process.stdout.write(
       simpleParser(stream)
         .then((parsed) => {
           const envelopeTo = (session.envelope.rcptTo ?? []).map(r => r.address)
-          const id = messageFileId()
+          // One clock reading for both, so the file order and the times shown always agree.
+          const at = new Date()
+          const id = messageFileId(at)
           const record = {
             id,
-            receivedAt: new Date().toISOString(),
+            receivedAt: at.toISOString(),
             from: parsed.from?.text ?? session.envelope.mailFrom?.address ?? '',
             to: envelopeTo.length ? envelopeTo : addressList(parsed.to),
             subject: parsed.subject ?? '',

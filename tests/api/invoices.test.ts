@@ -191,13 +191,14 @@ describe('paying online and the payment webhook', () => {
   it('a bad or missing signature gets 400 and changes nothing', async () => {
     const inv = await openInvoice()
     const payload = eventFor('invoice.paid', inv)
-    const events = (await testDb().select({ id: schema.paymentEvents.id }).from(schema.paymentEvents)).length
+    const eventId = JSON.parse(payload).id as string
     expect((await post(payload, signed(payload, 'whsec_wrong'))).status).toBe(400)
     expect((await post(payload)).status).toBe(400)
     // Signed, then altered: still refused.
     expect((await post(payload.replace('invoice.paid', 'invoice.voided'), signed(payload))).status).toBe(400)
     expect((await row(inv.id)).status).toBe('open')
-    expect((await testDb().select({ id: schema.paymentEvents.id }).from(schema.paymentEvents)).length).toBe(events)
+    // Nothing recorded for this event (other events, e.g. the provider's own for this invoice, may arrive meanwhile).
+    expect(await testDb().select({ id: schema.paymentEvents.id }).from(schema.paymentEvents).where(eq(schema.paymentEvents.id, eventId))).toHaveLength(0)
   })
 
   it('applies an event once: a repeat is acknowledged and changes nothing; a late failure cannot undo a payment', async () => {
