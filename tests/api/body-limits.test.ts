@@ -129,4 +129,27 @@ describe('streaming body limits', () => {
     // Before the limits, one such photo raised the server by about 400 MB.
     expect(growthMb, `the server grew by ${growthMb.toFixed(1)} MB`).toBeLessThan(150)
   })
+
+  it('twenty photos of about 5 MB uploaded at once are all stored, and the server stays within a bounded amount of memory', async () => {
+    const width = 3000
+    const height = 2000
+    const noise = Buffer.alloc(width * height * 3)
+    for (let i = 0; i < noise.length; i += 4) noise.writeUInt32LE((Math.random() * 0xFFFFFFFF) >>> 0, i)
+    const jpeg = await sharp(noise, { raw: { width, height, channels: 3 } }).jpeg({ quality: 90 }).toBuffer()
+    const upload = async () => {
+      const form = new FormData()
+      const id = randomUUID()
+      form.append('id', id)
+      form.append('file', new Blob([new Uint8Array(jpeg)], { type: 'image/jpeg' }), 'photo.jpg')
+      const res = await fetch(`${baseUrl()}/api/visits/${visitId}/photos`, { method: 'POST', body: form, headers: { authorization: `Bearer ${tess}` } })
+      return { id, status: res.status, body: await res.json() }
+    }
+    const { result, growthMb } = await rssGrowthDuring(() => Promise.all(Array.from({ length: 20 }, upload)))
+    for (const r of result) expect(r.status, JSON.stringify(r.body)).toBe(201)
+    const stored = (await api(`/api/visits/${visitId}/record`, { token: tess })).body.photos.map((p: { id: string }) => p.id)
+    for (const r of result) expect(stored).toContain(r.id)
+    console.info(`twenty ${(jpeg.length / MB).toFixed(1)} MB photos at once: the server grew by ${growthMb.toFixed(1)} MB`)
+    // Before the limits, twenty 5 MB photos at once peaked about 1 GB above the start.
+    expect(growthMb, `the server grew by ${growthMb.toFixed(1)} MB`).toBeLessThan(300)
+  }, 180_000)
 })
