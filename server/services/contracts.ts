@@ -122,18 +122,30 @@ const ALLOWED: Record<ContractAction['action'], ContractStatus[]> = {
   renew: ['active', 'ended'],
 }
 
-/** Moves a contract through its lifecycle; visits follow. Every step is audited. */
+function checkAllowed(act: ContractAction, status: ContractStatus, renewed: boolean) {
+  if (!ALLOWED[act.action].includes(status)) {
+    throw httpError(409, `A ${status} contract cannot ${act.action}; allowed from: ${ALLOWED[act.action].join(', ')}`)
+  }
+  if (act.action === 'renew' && renewed) throw httpError(409, 'This contract has already been renewed')
+}
+
+/**
+ * Moves a contract through its lifecycle; visits follow. Every step is audited. The contract row
+ * is locked and its state checked again inside the transaction, so actions sent at once take
+ * turns: five renewals at once make one renewal and four 409s.
+ */
 export async function actOnContract(actor: SessionUser, id: string, act: ContractAction, ip: string, clock: GenerationClock = {}) {
   const before = await getContract(actor, id)
-  if (!ALLOWED[act.action].includes(before.status)) {
-    throw httpError(409, `A ${before.status} contract cannot ${act.action}; allowed from: ${ALLOWED[act.action].join(', ')}`)
-  }
-  if (act.action === 'renew' && before.renewedById) throw httpError(409, 'This contract has already been renewed')
+  checkAllowed(act, before.status, before.renewedById !== null)
   const result = await useDb().transaction(async (tx) => {
+    const [locked] = await tx.select({ status: contracts.status }).from(contracts).where(and(eq(contracts.id, id), eq(contracts.companyId, actor.companyId))).for('update').limit(1)
+    if (!locked) throw httpError(404, 'No such contract')
+    const [next] = await tx.select({ id: contracts.id }).from(contracts).where(eq(contracts.previousContractId, id)).limit(1)
+    checkAllowed(act, locked.status, next !== undefined)
     const base = { companyId: actor.companyId, actorUserId: actor.id, subjectType: 'contract', ip }
     const setStatus = async (status: ContractStatus, extra: Partial<typeof contracts.$inferInsert> = {}) => {
       await tx.update(contracts).set({ status, statusReason: act.reason, ...extra }).where(eq(contracts.id, id))
-      await recordAudit(tx, { ...base, subjectId: id, action: `contract.${act.action}`, detail: { from: before.status, to: status, reason: act.reason } })
+      await recordAudit(tx, { ...base, subjectId: id, action: `contract.${act.action}`, detail: { from: locked.status, to: status, reason: act.reason } })
     }
     switch (act.action) {
       case 'activate':
@@ -162,11 +174,15 @@ export async function actOnContract(actor: SessionUser, id: string, act: Contrac
 
 /**
  * Starts the next term of a contract (same plan, price, features and renewal setting) with its
- * visits, inside the caller's transaction. The unique index on `previous_contract_id` makes a
- * second renewal of the same term fail, so a retried renewal cannot make two.
+ * visits, inside the caller's transaction. The contract row is locked first and a term already
+ * renewed is a 409 (the unique index on `previous_contract_id` backs this), so a retried or
+ * concurrent renewal cannot make two.
  */
 export async function renewInTx(tx: Tx, id: string, opts: { actorUserId: string | null, ip: string | null, clock?: GenerationClock }) {
-  const [prev] = await tx.select().from(contracts).where(eq(contracts.id, id)).limit(1)
+  const [prev] = await tx.select().from(contracts).where(eq(contracts.id, id)).for('update').limit(1)
+  if (!prev) throw httpError(404, 'No such contract')
+  const [renewed] = await tx.select({ id: contracts.id }).from(contracts).where(eq(contracts.previousContractId, id)).limit(1)
+  if (renewed) throw httpError(409, 'This contract has already been renewed')
   const [plan] = await tx.select().from(plans).where(eq(plans.id, prev!.planId)).limit(1)
   const termStart = addDays(prev!.termEnd, 1)
   const [next] = await tx.insert(contracts).values({

@@ -8,6 +8,7 @@ import { ownCustomerId, type SessionUser } from '../utils/auth'
 import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { escapeHtml } from '../utils/html'
+import type { PhotoFile } from '../utils/photo-upload'
 import { publicAppUrl } from '../utils/payments'
 import { recordAudit } from './audit'
 import { enqueueMail } from './mail'
@@ -95,7 +96,7 @@ export async function createRequest(actor: SessionUser, input: ServiceRequestInp
 }
 
 /** A photo for a request still waiting for an answer, by the customer who made it; at most five. */
-export async function addRequestPhoto(actor: SessionUser, requestId: string, input: { id: string, data: Buffer, caption: string }, ip: string) {
+export async function addRequestPhoto(actor: SessionUser, requestId: string, input: { id: string, file: PhotoFile, caption: string }, ip: string) {
   const db = useDb()
   const [r] = await db.select().from(serviceRequests).where(and(eq(serviceRequests.id, requestId), ...scope(actor))).limit(1)
   if (!r) throw httpError(404, 'No such request')
@@ -105,12 +106,12 @@ export async function addRequestPhoto(actor: SessionUser, requestId: string, inp
     return existing
   }
   if (r.status !== 'new') throw httpError(409, 'This request has been answered; send a new one to add photos')
-  return db.transaction(async (tx) => {
+  return storePhoto(actor, { visitId: null, requestId, customerId: r.customerId, featureId: r.featureId }, input, { action: 'request.photo_added', subjectType: 'request', subjectId: requestId, ip }, async (tx) => {
     // The request row's lock keeps two uploads at once from passing the limit together.
-    await tx.select({ id: serviceRequests.id }).from(serviceRequests).where(eq(serviceRequests.id, requestId)).for('update')
+    const [locked] = await tx.select({ status: serviceRequests.status }).from(serviceRequests).where(eq(serviceRequests.id, requestId)).for('update')
+    if (locked?.status !== 'new') throw httpError(409, 'This request has been answered; send a new one to add photos')
     const [{ n }] = await tx.select({ n: count() }).from(photos).where(eq(photos.requestId, requestId)) as [{ n: number }]
     if (n >= MAX_REQUEST_PHOTOS) throw httpError(400, `Invalid body: file — at most ${MAX_REQUEST_PHOTOS} photos per request`, { fields: { file: `At most ${MAX_REQUEST_PHOTOS} photos` } })
-    return storePhoto(actor, { visitId: null, requestId, customerId: r.customerId, featureId: r.featureId }, input, { action: 'request.photo_added', subjectType: 'request', subjectId: requestId, ip }, tx)
   })
 }
 

@@ -14,8 +14,9 @@ import { flushOutbox } from './mail'
 type Visit = typeof visits.$inferSelect
 
 /** The visit, if the caller may work on it: the owner, or the technician it is assigned to. */
-async function workableVisit(actor: SessionUser, id: string, db: ReturnType<typeof useDb> | Tx = useDb()): Promise<Visit> {
-  const [v] = await db.select().from(visits).where(and(eq(visits.id, id), eq(visits.companyId, actor.companyId))).limit(1)
+async function workableVisit(actor: SessionUser, id: string, db: ReturnType<typeof useDb> | Tx = useDb(), lock = false): Promise<Visit> {
+  const where = and(eq(visits.id, id), eq(visits.companyId, actor.companyId))
+  const [v] = lock ? await db.select().from(visits).where(where).for('update').limit(1) : await db.select().from(visits).where(where).limit(1)
   if (!v) throw httpError(404, 'No such visit')
   if (actor.role !== 'owner' && v.technicianId !== actor.id) throw httpError(403, 'This visit is assigned to someone else')
   return v
@@ -67,10 +68,13 @@ export async function startVisit(actor: SessionUser, id: string, ip: string) {
  * Saves the whole record as the phone holds it, in one transaction: checklist, notes, readings
  * and doses upserted by their client-made ids (a resubmission changes nothing), and readings or
  * doses the technician removed are deleted. Each reading is evaluated against its feature's ranges.
+ * A reading or dose id that belongs to another visit is a 409, also when two visits race for the
+ * same new id: the upsert only ever updates a row of this visit. Saves of one visit take turns
+ * (the visit row is locked).
  */
 export async function saveVisitRecord(actor: SessionUser, id: string, input: VisitRecordInput, ip: string, tx?: Tx) {
   const run = async (t: Tx) => {
-    const v = await workableVisit(actor, id, t)
+    const v = await workableVisit(actor, id, t, true)
     if (v.status !== 'in_progress') throw httpError(409, v.status === 'scheduled' ? 'Start the visit first' : `This visit is ${v.status.replace('_', ' ')} and cannot change`)
     const features = await visitFeatures(v)
     const byId = new Map(features.map(f => [f.id, f]))
@@ -81,6 +85,11 @@ export async function saveVisitRecord(actor: SessionUser, id: string, input: Vis
     if (ids.length) {
       const clash = await t.select({ id: readings.id }).from(readings).where(and(inArray(readings.id, ids), sql`${readings.visitId} is distinct from ${id}`)).limit(1)
       if (clash.length) throw httpError(409, 'A reading with this id belongs to another visit')
+    }
+    const doseIds = input.doses.map(d => d.id)
+    if (doseIds.length) {
+      const clash = await t.select({ id: doses.id }).from(doses).where(and(inArray(doses.id, doseIds), sql`${doses.visitId} is distinct from ${id}`)).limit(1)
+      if (clash.length) throw httpError(409, 'A dose with this id belongs to another visit')
     }
     await t.update(visits).set({ checklist: input.checklist, customerNotes: input.customerNotes, internalNotes: input.internalNotes }).where(eq(visits.id, id))
     await t.delete(readings).where(and(eq(readings.visitId, id), ids.length ? notInArray(readings.id, ids) : undefined))
@@ -99,14 +108,15 @@ export async function saveVisitRecord(actor: SessionUser, id: string, input: Vis
         ...values, companyId: actor.companyId, featureId, visitId: id, takenAt: new Date(takenAt), enteredBy: actor.id, source: 'technician' as const,
         nh3MgL: evaluation.computed.nh3MgL, doSaturationPct: evaluation.computed.doSaturationPct, overall: evaluation.overall, evaluation: evaluation.parameters,
       }
-      await t.insert(readings).values({ id: rid, ...row }).onConflictDoUpdate({ target: readings.id, set: row })
+      const [kept] = await t.insert(readings).values({ id: rid, ...row }).onConflictDoUpdate({ target: readings.id, set: row, setWhere: eq(readings.visitId, id) }).returning({ id: readings.id })
+      if (!kept) throw httpError(409, 'A reading with this id belongs to another visit')
     }
-    const doseIds = input.doses.map(d => d.id)
     await t.delete(doses).where(and(eq(doses.visitId, id), doseIds.length ? notInArray(doses.id, doseIds) : undefined))
     for (const d of input.doses) {
       const { id: did, dosedAt, ...rest } = d
       const row = { ...rest, productId: rest.productId ?? null, companyId: actor.companyId, visitId: id, dosedAt: new Date(dosedAt) }
-      await t.insert(doses).values({ id: did, ...row }).onConflictDoUpdate({ target: doses.id, set: row })
+      const [kept] = await t.insert(doses).values({ id: did, ...row }).onConflictDoUpdate({ target: doses.id, set: row, setWhere: eq(doses.visitId, id) }).returning({ id: doses.id })
+      if (!kept) throw httpError(409, 'A dose with this id belongs to another visit')
     }
     await recordAudit(t, { action: 'visit.recorded', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'visit', subjectId: id, ip, detail: { readings: ids.length, doses: doseIds.length } })
   }

@@ -1,6 +1,7 @@
 import type { H3Event } from 'h3'
 import type { z } from 'zod'
 import { fieldErrors } from '../../shared/utils/field-errors'
+import { readLimitedBody } from './body-limit'
 import { httpError } from './errors'
 
 function check<S extends z.ZodType>(schema: S, value: unknown, where: string): z.output<S> {
@@ -13,14 +14,20 @@ function check<S extends z.ZodType>(schema: S, value: unknown, where: string): z
   return parsed.data
 }
 
-/** The request body parsed by `schema`; a 400 naming each bad field otherwise. */
+/**
+ * The request body parsed by `schema`; a 400 naming each bad field otherwise. The bytes are
+ * counted while they arrive: past the JSON limit is a 413, however the body was sent.
+ */
 export async function readBodyAs<S extends z.ZodType>(event: H3Event, schema: S): Promise<z.output<S>> {
+  const raw = await readLimitedBody(event)
   let body: unknown
-  try {
-    body = await readBody(event)
-  }
-  catch {
-    throw httpError(400, 'Invalid body: it is not valid JSON')
+  if (raw?.length) {
+    try {
+      body = await readBody(event)
+    }
+    catch {
+      throw httpError(400, 'Invalid body: it is not valid JSON')
+    }
   }
   return check(schema, body ?? {}, 'body')
 }

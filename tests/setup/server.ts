@@ -188,6 +188,8 @@ export async function setup(project: TestProject) {
   project.provide('paymentsUrl', STRIPE_TEST.STRIPE_API_URL)
   project.provide('paymentsEnv', STRIPE_TEST)
   project.provide('serverLog', SERVER_LOG)
+  // The built server's process, so memory tests can read its resident size from /proc.
+  project.provide('serverPid', env.server.pid!)
 }
 
 export async function teardown() {
@@ -210,5 +212,6 @@ declare module 'vitest' {
     paymentsUrl: string
     paymentsEnv: Record<string, string>
     serverLog: string
+    serverPid: number
   }
 }

@@ -6,7 +6,8 @@ import { verifyWebhook } from '../../utils/payments'
 export default defineEventHandler(async (event) => {
   const signature = getHeader(event, 'stripe-signature')
   if (!signature) throw httpError(400, 'Invalid header: stripe-signature — missing')
-  const payload = (await readRawBody(event, 'utf8')) ?? ''
+  // Counted as it arrives: past the raw-body limit is a 413 before anything is verified.
+  const payload = (await readLimitedBody(event))?.toString('utf8') ?? ''
   let verified
   try {
     verified = verifyWebhook(payload, signature)

@@ -10,5 +10,5 @@ export default defineEventHandler(async (event) => {
   await getRequest(user, id)
   const upload = await readPhotoUpload(event, requestPhotoFields)
   setResponseStatus(event, 201)
-  return addRequestPhoto(user, id, { ...upload.fields, data: upload.data }, requestIp(event))
+  return addRequestPhoto(user, id, { ...upload.fields, file: upload.file }, requestIp(event))
 })

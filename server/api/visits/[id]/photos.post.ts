@@ -14,5 +14,5 @@ export default defineEventHandler(async (event) => {
   const { id } = paramsAs(event, idParam)
   const upload = await readPhotoUpload(event, fields)
   setResponseStatus(event, 201)
-  return addVisitPhoto(user, id, { ...upload.fields, data: upload.data }, requestIp(event))
+  return addVisitPhoto(user, id, { ...upload.fields, file: upload.file }, requestIp(event))
 })
