@@ -7,7 +7,8 @@ export { localDate }
 
 /** What a PATCH may change on a contract, without defaults. */
 const contractFields = {
-  featureIds: z.array(z.uuid('Not a valid feature id')).min(1, 'Choose at least one water feature').max(20, 'At most 20 water features'),
+  featureIds: z.array(z.uuid('Not a valid feature id')).min(1, 'Choose at least one water feature').max(20, 'At most 20 water features')
+    .transform(ids => [...new Set(ids)]),
   termStart: localDate,
   priceOverrideMinor: moneyMinor('Price', { max: 100_000_000 }).nullable(),
   autoRenew: z.boolean('Choose yes or no'),
