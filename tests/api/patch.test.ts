@@ -48,6 +48,11 @@ interface Spec {
   token: () => string
   /** Random subsets of valid fields. */
   body: fc.Arbitrary<Body>
+  /**
+   * Puts the record back in a full state before each run, every field away from its default, so
+   * a field blanked by a PATCH that did not name it is seen.
+   */
+  reset?: () => Promise<void>
   /** Makes a subset consistent (fields that go together); an empty result is not sent. */
   fixup?: (b: Body) => Body
   /** The record as stored, with its nested lists. */
@@ -61,12 +66,26 @@ interface Spec {
 }
 
 const one = async <T>(rows: Promise<T[]>) => (await rows)[0] as T
+const put = (path: () => string, full: () => Body) => async () => {
+  const r = await api(path(), { method: 'PATCH', token: tokens.owner, body: full() })
+  expect(r.status, `reset ${path()}: ${JSON.stringify(r.body).slice(0, 300)}`).toBe(200)
+}
+const fullContact = (n: string) => ({ name: n, email: `${n.toLowerCase()}@patch.example`, phone: '555 0100', getsReports: true, getsInvoices: false, getsAlerts: true })
+const richEquipment = () => ({
+  pumps: [{ name: 'Main', role: 'waterfall', ratedFlowLph: 9000 }], intake: 'skimmer', biologicalFilter: true, wetlandFilter: true,
+  uvClarifier: { watts: 36, bulbInstalledOn: '2025-04-01' }, aerator: true, deIcer: true, autoDosing: true, ionizer: true, notes: 'Skimmer left',
+})
+const richOverrides = () => ({ pH: { actBelow: 6, watchBelow: 6.5, source: 'set by the company', sourceKind: 'common practice' } })
 const ARCHIVE = { archived: ['archivedAt'] }
 
 const SPECS: Record<string, Spec> = {
   'PATCH /api/customers/:id': {
     path: () => `/api/customers/${ids.customerA}`,
     token: () => tokens.owner,
+    reset: put(() => `/api/customers/${ids.customerA}`, () => ({
+      name: 'Patch A', kind: 'business', contacts: [fullContact('Ada'), fullContact('Bo')], billingLine1: '1 Reed Lane', billingLine2: 'Unit 2',
+      billingCity: 'Fenbrook', billingRegion: 'IL', billingPostcode: '60601', billingCountry: 'CA', tags: ['koi', 'weekly'], notes: 'Ring twice', active: false, archived: true,
+    })),
     body: some({
       name: word, kind: fc.constantFrom('household', 'business', 'association', 'public'), contacts: fc.array(contact, { maxLength: 3 }),
       billingLine1: optText, billingLine2: optText, billingCity: optText, billingRegion: optText, billingPostcode: fc.constantFrom('', '60601', 'SW1A 1AA'),
@@ -86,6 +105,10 @@ const SPECS: Record<string, Spec> = {
   'PATCH /api/sites/:id': {
     path: () => `/api/sites/${ids.siteB}`,
     token: () => tokens.owner,
+    reset: put(() => `/api/sites/${ids.siteB}`, () => ({
+      name: 'Home', line1: '1 Reed Lane', line2: 'Rear', city: 'Fenbrook', region: 'IL', postcode: '60601', country: 'CA', latitude: 41.8, longitude: -87.7,
+      altitudeM: 180, accessNotes: 'Back gate', gateCode: '2468', hazards: ['dogs', 'deep_water'], hazardNotes: 'Two dogs', archived: true,
+    })),
     body: some({
       name: word, line1: word, line2: optText, city: word, region: optText, postcode: optText, country: fc.constantFrom('US', 'CA'),
       latitude: maybe(coord(90)), longitude: maybe(coord(180)), altitudeM: maybe(fc.integer({ min: -500, max: 6000 })),
@@ -106,6 +129,11 @@ const SPECS: Record<string, Spec> = {
   'PATCH /api/features/:id': {
     path: () => `/api/features/${ids.featureA}`,
     token: () => tokens.owner,
+    reset: put(() => `/api/features/${ids.featureA}`, () => ({
+      name: 'Koi pond', kind: 'koi_pond', shape: { kind: 'rectangle', lengthM: 4, widthM: 3, depthM: 1.2 }, measuredVolumeL: 14000, equipment: richEquipment(),
+      fish: [{ kind: 'koi', count: 8 }], plants: 'Water lilies', notes: 'Heron netting in winter', installedOn: '2019-06-01', rangeProfileId: ids.profile,
+      rangeOverrides: richOverrides(), archived: true,
+    })),
     body: some({
       name: word, kind: fc.constantFrom(...FEATURE_KINDS), shape, measuredVolumeL: maybe(fc.integer({ min: 100, max: 500_000 })),
       equipment: some({ pumps: fc.array(pump, { maxLength: 3 }), intake: fc.constantFrom('none', 'skimmer', 'intake_bay'), biologicalFilter: bool, aerator: bool, deIcer: bool, notes: optText }),
@@ -130,6 +158,7 @@ const SPECS: Record<string, Spec> = {
   'PATCH /api/products/:id': {
     path: () => `/api/products/${ids.product}`,
     token: () => tokens.owner,
+    reset: put(() => `/api/products/${ids.product}`, () => ({ name: 'Water conditioner', kind: 'dechlorinator', labelAmount: 5, labelUnit: 'mL', labelPerLitres: 40, cautions: ['Keep from children', 'Shake well'], archived: true })),
     body: some({
       name: word, kind: fc.constantFrom('dechlorinator', 'bacteria', 'kh_buffer', 'salt', 'other'), labelAmount: fc.integer({ min: 1, max: 1000 }),
       labelUnit: fc.constantFrom('mL', 'g'), labelPerLitres: fc.integer({ min: 1, max: 10_000 }), cautions: fc.array(word, { maxLength: 3 }), archived: bool,
@@ -141,6 +170,10 @@ const SPECS: Record<string, Spec> = {
   'PATCH /api/plans/:id': {
     path: () => `/api/plans/${ids.plan}`,
     token: () => tokens.owner,
+    reset: put(() => `/api/plans/${ids.plan}`, () => ({
+      name: 'Season care', description: 'Spring to fall', priceMinor: 120_000, currency: 'USD', billingCadence: 'monthly', termMonths: 12, autoRenewDefault: false, archived: true,
+      templates: [{ visitType: 'routine', rrule: 'FREQ=MONTHLY;BYMONTHDAY=10', durationMinutes: 60, checklist: [{ label: 'Skimmer' }] }],
+    })),
     body: some({
       name: word, description: optText, priceMinor: fc.integer({ min: 0, max: 1_000_000 }), currency: fc.constantFrom('USD', 'EUR'),
       billingCadence: fc.constantFrom('yearly', 'monthly', 'per_visit'), termMonths: fc.integer({ min: 1, max: 36 }), autoRenewDefault: bool,
@@ -238,6 +271,7 @@ const SPECS: Record<string, Spec> = {
   'PATCH /api/alerts/:id': {
     path: () => `/api/alerts/${ids.alert}`,
     token: () => tokens.owner,
+    reset: async () => { await db.update(schema.alerts).set({ status: 'open', note: 'Called the owner' }).where(eq(schema.alerts.id, ids.alert!)) },
     body: fc.record({ status: fc.constant('acknowledged'), note: word }, { requiredKeys: ['status'] }),
     state: () => one(db.select().from(schema.alerts).where(eq(schema.alerts.id, ids.alert!))),
     echo: ['status', 'note'],
@@ -290,7 +324,6 @@ beforeAll(async () => {
     expect(r.status, `${path}: ${JSON.stringify(r.body)}`).toBeLessThan(300)
     return r.body
   }
-  const fullContact = (n: string) => ({ name: n, email: `${n.toLowerCase()}@patch.example`, phone: '555 0100', getsReports: true, getsInvoices: false, getsAlerts: true })
   const customer = (name: string) => ({
     name, kind: 'household', contacts: [fullContact('Ada'), fullContact('Bo')], billingLine1: '1 Reed Lane', billingCity: 'Fenbrook',
     billingPostcode: '60601', tags: ['koi', 'weekly'], notes: 'Ring twice', active: true,
@@ -356,6 +389,7 @@ describe('PATCH means patch', () => {
       await fc.assert(fc.asyncProperty(spec.body, async (raw) => {
         const body = spec.fixup ? spec.fixup(raw) : raw
         if (Object.keys(body).length === 0) return
+        await spec.reset?.()
         const before = await spec.state()
         const res = await api(spec.path(), { method: 'PATCH', token: spec.token(), body })
         expect(res.status, `${r.key} ${JSON.stringify(body)} → ${JSON.stringify(res.body).slice(0, 400)}`).toBe(200)
