@@ -215,9 +215,9 @@ export async function openAlertCounts(actor: SessionUser) {
   return { act: rows.find(r => r.severity === 'act')?.n ?? 0, watch: rows.find(r => r.severity === 'watch')?.n ?? 0, featureIds: features.map(f => f.featureId!) }
 }
 
-export async function closeAlert(actor: SessionUser, id: string, input: { status: 'acknowledged' | 'resolved', note: string }, ip: string) {
+export async function closeAlert(actor: SessionUser, id: string, input: { status: 'acknowledged' | 'resolved', note?: string }, ip: string) {
   return useDb().transaction(async (tx) => {
-    const [row] = await tx.update(alerts).set({ status: input.status, note: input.note, ...(input.status === 'resolved' && { closedAt: new Date(), closedBy: actor.id }) })
+    const [row] = await tx.update(alerts).set({ status: input.status, ...(input.note !== undefined && { note: input.note }), ...(input.status === 'resolved' && { closedAt: new Date(), closedBy: actor.id }) })
       .where(and(eq(alerts.id, id), eq(alerts.companyId, actor.companyId), ne(alerts.status, 'resolved'))).returning()
     if (!row) throw httpError(404, 'No such open alert')
     await recordAudit(tx, { action: `alert.${input.status}`, companyId: actor.companyId, actorUserId: actor.id, subjectType: 'alert', subjectId: id, ip, detail: { note: input.note } })

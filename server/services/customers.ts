@@ -1,4 +1,4 @@
-import { and, asc, count, desc, eq, exists, ilike, isNotNull, isNull, or, sql, type SQL } from 'drizzle-orm'
+import { and, asc, count, desc, eq, exists, ilike, isNotNull, isNull, notInArray, or, sql, type SQL } from 'drizzle-orm'
 import type { CustomerInput, CustomerUpdateInput } from '../../shared/schemas/customers'
 import { contracts, customerContacts, customers, sites, users, waterFeatures } from '../db/schema'
 import { isStaff, ownCustomerId, type SessionUser } from '../utils/auth'
@@ -84,13 +84,18 @@ export async function getCustomer(actor: SessionUser, id: string) {
   }
 }
 
+/**
+ * Replaces a customer's contacts with `contacts`, in order. A contact sent with its id keeps it
+ * (and so the portal's link to it); contacts left out are removed.
+ */
 async function writeContacts(tx: Tx, customerId: string, contacts: CustomerInput['contacts']) {
-  await tx.delete(customerContacts).where(eq(customerContacts.customerId, customerId))
-  if (contacts.length) {
-    await tx.insert(customerContacts).values(contacts.map((c, position) => ({
-      customerId, position, name: c.name, email: c.email ?? null, phone: c.phone ?? null,
-      getsReports: c.getsReports, getsInvoices: c.getsInvoices, getsAlerts: c.getsAlerts,
-    })))
+  const existing = new Set((await tx.select({ id: customerContacts.id }).from(customerContacts).where(eq(customerContacts.customerId, customerId))).map(c => c.id))
+  const keep = contacts.flatMap(c => (c.id && existing.has(c.id) ? [c.id] : []))
+  await tx.delete(customerContacts).where(and(eq(customerContacts.customerId, customerId), keep.length ? notInArray(customerContacts.id, keep) : undefined))
+  for (const [position, c] of contacts.entries()) {
+    const values = { name: c.name, email: c.email ?? null, phone: c.phone ?? null, getsReports: c.getsReports, getsInvoices: c.getsInvoices, getsAlerts: c.getsAlerts, position }
+    if (c.id && existing.has(c.id)) await tx.update(customerContacts).set(values).where(and(eq(customerContacts.id, c.id), eq(customerContacts.customerId, customerId)))
+    else await tx.insert(customerContacts).values({ ...values, customerId })
   }
 }
 

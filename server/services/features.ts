@@ -153,12 +153,17 @@ export async function createFeature(actor: SessionUser, input: FeatureInput, ip:
 
 export async function updateFeature(actor: SessionUser, id: string, input: FeatureUpdateInput, ip: string) {
   ownerOnlyVolume(actor, input)
-  await getFeature(actor, id)
+  const before = await getFeature(actor, id)
   await checkProfile(actor, input.rangeProfileId)
-  const { archived, shape, ...fields } = input
+  const { archived, shape, equipment, ...fields } = input
   const sizes = shape ? measure(shape) : {}
   await useDb().transaction(async (tx) => {
-    const set = { ...fields, ...sizes, ...(archived !== undefined && { archivedAt: archived ? new Date() : null }) }
+    const set = {
+      ...fields, ...sizes,
+      // Equipment is patched key by key: pumps and the rest stay unless their key is sent.
+      ...(equipment && { equipment: { ...before.equipment, ...equipment } }),
+      ...(archived !== undefined && { archivedAt: archived ? new Date() : null }),
+    }
     if (Object.keys(set).length) await tx.update(waterFeatures).set(set).where(and(eq(waterFeatures.id, id), eq(waterFeatures.companyId, actor.companyId)))
     await recordAudit(tx, {
       action: archived === undefined ? 'feature.updated' : archived ? 'feature.archived' : 'feature.restored',

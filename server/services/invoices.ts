@@ -2,6 +2,7 @@ import { and, asc, count, desc, eq, ilike, lt, or, sql, type SQL } from 'drizzle
 import type { InvoiceCreateInput, InvoiceLineInput, InvoiceListQuery, InvoiceUpdateInput } from '../../shared/schemas/billing'
 import { PAYMENT_METHOD_LABELS, type InvoiceDocument, type InvoiceSource } from '../../shared/types/billing'
 import { addDays, localToday } from '../../shared/utils/recurrence'
+import { MONEY_MAX_MINOR } from '../../shared/schemas/fields'
 import { formatTaxRate, invoiceTotals } from '../../shared/utils/billing'
 import { formatMoney } from '../../shared/utils/money'
 import { companies, contracts, customers, invoiceCounters, invoiceLines, invoices, plans } from '../db/schema'
@@ -171,6 +172,11 @@ export async function getInvoice(actor: SessionUser, id: string) {
 /** Replaces a draft's lines and recomputes its totals from them (tax rounded once; see shared/utils/billing). */
 export async function writeLines(tx: Tx, invoiceId: string, taxRateBasisPoints: number, input: readonly InvoiceLineInput[]) {
   const totals = invoiceTotals(input, taxRateBasisPoints)
+  const amounts = [totals.subtotalMinor, totals.taxMinor, totals.totalMinor, ...totals.lines.map(l => l.amountMinor)]
+  if (amounts.some(a => Math.abs(a) > MONEY_MAX_MINOR)) {
+    const message = 'The invoice total is more than an invoice can hold; split the lines over several invoices'
+    throw httpError(400, `Invalid body: lines — ${message}`, { fields: { lines: message } })
+  }
   await tx.delete(invoiceLines).where(eq(invoiceLines.invoiceId, invoiceId))
   await tx.insert(invoiceLines).values(input.map((l, position) => ({
     invoiceId, position, kind: l.kind, description: l.description, quantity: l.quantity, unitPriceMinor: l.unitPriceMinor,

@@ -1,10 +1,11 @@
 import { z } from 'zod'
+import { safeString } from './fields'
 
-export const email = z.string().trim().toLowerCase().pipe(z.email('Enter a valid e-mail address')).pipe(z.string().max(254))
+export const email = safeString('The e-mail address').trim().toLowerCase().pipe(z.email('Enter a valid e-mail address')).pipe(z.string().max(254))
 
 export const signInSchema = z.object({
   email,
-  password: z.string().min(1, 'Enter your password').max(256, 'Password is too long'),
+  password: safeString('The password').min(1, 'Enter your password').max(256, 'Password is too long'),
 })
 export type SignInInput = z.output<typeof signInSchema>
 
@@ -19,7 +20,7 @@ export const COMMON_PASSWORDS = new Set([
   'qwertyuiop', 'qwerty1234', '1q2w3e4r5t', 'iloveyou12', 'letmein123', 'welcome123', 'abcdefghij', 'abc1234567',
   'passw0rd12', 'administrator', 'changeme123', 'trustno1234',
 ])
-export const newPassword = z.string()
+export const newPassword = safeString('The password')
   .min(10, 'Use at least 10 characters')
   .max(128, 'Use at most 128 characters')
   .refine(p => !COMMON_PASSWORDS.has(p.toLowerCase()) && !/^(.)\1+$/.test(p), 'This password is too common; choose another')

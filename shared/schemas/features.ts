@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { createSchema, decimal, localDate, text, updateSchema, wholeNumber } from './fields'
 import { FEATURE_KINDS, PARAMETERS } from '../types/water'
 
 export const FEATURE_KIND_LABELS: Record<(typeof FEATURE_KINDS)[number], string> = {
@@ -27,10 +28,10 @@ export const shapeSchema = z.discriminatedUnion('kind', [
 ], 'Choose rectangle, circle, oval or irregular')
 
 export const PUMP_ROLES = ['waterfall', 'filter', 'stream', 'jets', 'fountain', 'aeration', 'other'] as const
-const isoDate = z.iso.date('Use a date like 2025-04-15')
+const isoDate = localDate
 
 export const pumpSchema = z.object({
-  name: z.string().trim().min(1, 'Name the pump').max(80),
+  name: text(80, 'Name the pump'),
   role: z.enum(PUMP_ROLES, 'Choose what the pump feeds'),
   /** Rated flow, litres per hour. */
   ratedFlowLph: z.number('Rated flow is a number').positive('Rated flow must be more than 0').max(200_000, 'Rated flow above 200,000 L/h is not plausible'),
@@ -38,59 +39,73 @@ export const pumpSchema = z.object({
 
 export const INTAKES = ['none', 'skimmer', 'intake_bay'] as const
 
-export const equipmentSchema = z.object({
-  pumps: z.array(pumpSchema).max(12, 'At most 12 pumps').default([]),
-  intake: z.enum(INTAKES, 'Choose skimmer, intake bay or none').default('none'),
-  biologicalFilter: z.boolean().default(false),
-  wetlandFilter: z.boolean().default(false),
+/** A feature's equipment, without defaults: the create schema fills them, a PATCH merges what it sends. */
+const equipmentFields = {
+  /** The whole list: sending it replaces the pumps. */
+  pumps: z.array(pumpSchema).max(12, 'At most 12 pumps'),
+  intake: z.enum(INTAKES, 'Choose skimmer, intake bay or none'),
+  biologicalFilter: z.boolean(),
+  wetlandFilter: z.boolean(),
   uvClarifier: z.object({
-    watts: z.number().positive('Wattage must be more than 0').max(1000).nullish(),
+    watts: decimal('Wattage', 0, 1000, { min: 'Wattage must be more than 0' }).positive('Wattage must be more than 0').nullish(),
     bulbInstalledOn: isoDate.nullish(),
-  }).nullish(),
-  aerator: z.boolean().default(false),
-  deIcer: z.boolean().default(false),
-  autoDosing: z.boolean().default(false),
-  ionizer: z.boolean().default(false),
-  notes: z.string().trim().max(2000).default(''),
+  }).nullable(),
+  aerator: z.boolean(),
+  deIcer: z.boolean(),
+  autoDosing: z.boolean(),
+  ionizer: z.boolean(),
+  notes: text(2000),
+}
+export const equipmentSchema = createSchema(equipmentFields, {
+  pumps: [], intake: 'none', biologicalFilter: false, wetlandFilter: false, uvClarifier: null, aerator: false, deIcer: false, autoDosing: false, ionizer: false, notes: '',
 })
+/** Part of the equipment: the keys sent replace theirs, the others stay. */
+export const equipmentPatchSchema = updateSchema(equipmentFields)
 export type FeatureEquipment = z.output<typeof equipmentSchema>
 
 export const fishSchema = z.object({
-  kind: z.string().trim().min(1, 'Name the fish, e.g. koi').max(60),
-  count: z.number().int('Count whole fish').min(0).max(100_000),
+  kind: text(60, 'Name the fish, e.g. koi'),
+  count: wholeNumber('Count', 0, 100_000, { max: 'Count at most 100,000 fish' }),
 })
 export type FishStock = z.output<typeof fishSchema>
 
+const limit = (what: string) => decimal(what, -1_000_000, 1_000_000)
+
 const rangeSchema = z.object({
-  actBelow: z.number().optional(),
-  watchBelow: z.number().optional(),
-  watchAbove: z.number().optional(),
-  actAbove: z.number().optional(),
-  target: z.number().optional(),
-  source: z.string().trim().max(300).default('set by the company'),
+  actBelow: limit('The act-below limit').optional(),
+  watchBelow: limit('The watch-below limit').optional(),
+  watchAbove: limit('The watch-above limit').optional(),
+  actAbove: limit('The act-above limit').optional(),
+  target: limit('The target').optional(),
+  source: text(300).default('set by the company'),
   sourceKind: z.enum(['published', 'common practice']).default('common practice'),
 }).refine(r => r.actBelow === undefined || r.watchBelow === undefined || r.actBelow <= r.watchBelow, { path: ['actBelow'], message: 'The act limit must not be above the watch limit' })
   .refine(r => r.actAbove === undefined || r.watchAbove === undefined || r.actAbove >= r.watchAbove, { path: ['actAbove'], message: 'The act limit must not be below the watch limit' })
 
 export const rangeTableSchema = z.partialRecord(z.enum(PARAMETERS), rangeSchema)
 
-export const featureSchema = z.object({
-  siteId: z.uuid('Choose a site'),
-  name: z.string().trim().min(1, 'Name the feature, e.g. Koi pond').max(120),
+/** A feature's fields (all but its site), without defaults: create and update are made from them. */
+const featureFields = {
+  name: text(120, 'Name the feature, e.g. Koi pond'),
   kind: z.enum(FEATURE_KINDS, 'Choose the kind of feature'),
   shape: shapeSchema,
-  measuredVolumeL: z.number('Measured volume is a number').positive('Measured volume must be more than 0').max(5_000_000).nullish(),
-  equipment: equipmentSchema.default(() => equipmentSchema.parse({})),
-  fish: z.array(fishSchema).max(30).default([]),
-  plants: z.string().trim().max(2000).default(''),
-  notes: z.string().trim().max(4000).default(''),
-  installedOn: isoDate.nullish(),
-  rangeProfileId: z.uuid().nullish(),
-  rangeOverrides: rangeTableSchema.default({}),
+  measuredVolumeL: decimal('Measured volume', 0, 5_000_000).positive('Measured volume must be more than 0').nullish(),
+  equipment: equipmentSchema,
+  /** The whole list: sending it replaces the fish. */
+  fish: z.array(fishSchema).max(30, 'At most 30 kinds of fish'),
+  plants: text(2000),
+  notes: text(4000),
+  installedOn: isoDate.nullable(),
+  rangeProfileId: z.uuid('Not a valid range profile').nullable(),
+  /** The whole table: sending it replaces the overrides. */
+  rangeOverrides: rangeTableSchema,
+}
+
+export const featureSchema = createSchema({ siteId: z.uuid('Choose a site'), ...featureFields }, {
+  equipment: equipmentSchema.parse({}), fish: [], plants: '', notes: '', installedOn: null, rangeProfileId: null, rangeOverrides: {},
 })
 export type FeatureInput = z.output<typeof featureSchema>
 
-export const featureUpdateSchema = featureSchema.omit({ siteId: true }).partial().extend({
-  archived: z.boolean().optional(),
-})
+/** PATCH: exactly the fields sent change (equipment key by key); `archived` alone archives or restores. */
+export const featureUpdateSchema = updateSchema(featureFields, { equipment: equipmentPatchSchema, archived: z.boolean('Choose true or false') })
 export type FeatureUpdateInput = z.output<typeof featureUpdateSchema>

@@ -1,10 +1,11 @@
 import { z } from 'zod'
+import { createSchema, moneyMinor, safeString, text, updateSchema, wholeNumber } from './fields'
 import { BILLING_CADENCES, VISIT_TYPES } from '../types/schedule'
 import { normalizeVisitRule, RecurrenceRuleError } from '../utils/recurrence'
 import { isCurrency } from './company'
 
 /** An RRULE body that the scheduler can expand; normalised to canonical form. */
-export const visitRuleSchema = z.string().trim().max(300, 'Use at most 300 characters').transform((rule, ctx) => {
+export const visitRuleSchema = safeString('The rule').trim().max(300, 'Use at most 300 characters').transform((rule, ctx) => {
   try {
     return normalizeVisitRule(rule)
   }
@@ -15,7 +16,7 @@ export const visitRuleSchema = z.string().trim().max(300, 'Use at most 300 chara
 })
 
 export const checklistItemSchema = z.object({
-  label: z.string().trim().min(1, 'Name the checklist item').max(200),
+  label: text(200, 'Name the checklist item'),
 })
 
 export const visitTemplateSchema = z.object({
@@ -23,22 +24,26 @@ export const visitTemplateSchema = z.object({
   id: z.uuid().optional(),
   visitType: z.enum(VISIT_TYPES, 'Choose the kind of visit'),
   rrule: visitRuleSchema,
-  durationMinutes: z.number('Duration is a number of minutes').int('Use whole minutes').min(10, 'At least 10 minutes').max(720, 'At most 12 hours'),
+  durationMinutes: wholeNumber('Duration', 10, 720, { min: 'At least 10 minutes', max: 'At most 12 hours' }),
   checklist: z.array(checklistItemSchema).max(40, 'At most 40 checklist items').default([]),
 })
 export type VisitTemplateInput = z.output<typeof visitTemplateSchema>
 
-export const planSchema = z.object({
-  name: z.string().trim().min(1, 'Name the plan').max(120),
-  description: z.string().trim().max(2000).default(''),
-  priceMinor: z.number('Price is a number').int('Price is in whole cents').min(0, 'Price cannot be negative').max(100_000_000, 'Price is not plausible'),
-  currency: z.string().trim().toUpperCase().refine(isCurrency, 'Use an ISO 4217 currency code, e.g. USD'),
+/** A plan's fields, without defaults: create and update are made from them. */
+const planFields = {
+  name: text(120, 'Name the plan'),
+  description: text(2000),
+  priceMinor: moneyMinor('Price', { max: 100_000_000 }),
+  currency: text(10).toUpperCase().refine(isCurrency, 'Use an ISO 4217 currency code, e.g. USD'),
   billingCadence: z.enum(BILLING_CADENCES, 'Choose yearly, monthly or per visit'),
-  termMonths: z.number('Term is a number of months').int().min(1, 'At least one month').max(36, 'At most 36 months'),
-  autoRenewDefault: z.boolean().default(true),
+  termMonths: wholeNumber('Term', 1, 36, { min: 'At least one month', max: 'At most 36 months' }),
+  autoRenewDefault: z.boolean('Choose yes or no'),
+  /** The whole list: sending it replaces the templates (each keeps its id when sent with it). */
   templates: z.array(visitTemplateSchema).min(1, 'A plan needs at least one kind of visit').max(20, 'At most 20 visit templates'),
-})
+}
+export const planSchema = createSchema(planFields, { description: '', autoRenewDefault: true })
 export type PlanInput = z.output<typeof planSchema>
 
-export const planUpdateSchema = planSchema.partial().extend({ archived: z.boolean().optional() })
+/** PATCH: exactly the fields sent change; `archived` alone archives or restores. */
+export const planUpdateSchema = updateSchema(planFields, { archived: z.boolean('Choose true or false') })
 export type PlanUpdateInput = z.output<typeof planUpdateSchema>

@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { MAX_REQUEST_PHOTOS, REQUEST_KINDS } from '../types/requests'
-import { localDate } from './contracts'
+import { pageQuery } from './common'
+import { localDate, text, timestamp, updateSchema, wholeNumber } from './fields'
 import { waterReadingSchema } from './water'
 
 /** A customer's own test (test strips or a drop kit) between visits; saved as customer-entered. */
@@ -10,7 +11,7 @@ export const customerReadingSchema = waterReadingSchema.pick({
   /** Made by the browser, so sending twice saves one reading. */
   id: z.uuid('Not a valid reading id'),
   featureId: z.uuid('Choose the water feature'),
-  takenAt: z.iso.datetime({ offset: true, message: 'Use an ISO date and time' }),
+  takenAt: timestamp,
 }).refine(r => ['temperatureC', 'pH', 'totalAmmoniaMgL', 'nitriteMgL', 'nitrateMgL', 'khMgL', 'ghMgL', 'chlorineMgL'].some(k => r[k as keyof typeof r] != null), {
   path: ['pH'], message: 'Enter at least one result',
 })
@@ -21,43 +22,42 @@ export const serviceRequestSchema = z.object({
   featureId: z.uuid('Not a valid water feature').nullish(),
   kind: z.enum(REQUEST_KINDS, 'Choose what it is about'),
   preferredDates: z.array(localDate).max(3, 'Give at most three dates').default([]),
-  description: z.string().trim().min(10, 'Tell us a little more (at least 10 characters)').max(2000, 'Use at most 2,000 characters'),
+  description: text(2000, 'Tell us a little more (at least 10 characters)').min(10, 'Tell us a little more (at least 10 characters)'),
 })
 export type ServiceRequestInput = z.output<typeof serviceRequestSchema>
 
 export const requestPhotoFields = z.object({
   id: z.uuid('Not a valid photo id'),
-  caption: z.string().trim().max(200).default(''),
+  caption: text(200).default(''),
 })
 export { MAX_REQUEST_PHOTOS }
 
 export const requestScheduleSchema = z.object({
   date: localDate,
   startTime: z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'Use a time like 09:30'),
-  durationMinutes: z.number('Duration is a number of minutes').int().min(15, 'At least 15 minutes').max(600, 'At most 10 hours'),
+  durationMinutes: wholeNumber('Duration', 15, 600, { min: 'At least 15 minutes', max: 'At most 10 hours' }),
   technicianId: z.uuid('Choose a technician').nullish(),
   visitType: z.enum(['routine', 'repair', 'water_test', 'spring_cleanout', 'net_cleanout', 'net_install', 'fall_shutdown'], 'Choose the kind of visit'),
-  reply: z.string().trim().max(1000).default(''),
+  reply: text(1000).default(''),
 })
 export type RequestScheduleInput = z.output<typeof requestScheduleSchema>
 
 export const requestDeclineSchema = z.object({
-  reply: z.string().trim().min(1, 'Tell the customer why').max(1000),
+  reply: text(1000, 'Tell the customer why'),
 })
 
-export const requestListQuery = z.object({
-  page: z.coerce.number().int().min(1).default(1),
-  pageSize: z.coerce.number().int().min(1).max(100).default(25),
+export const requestListQuery = pageQuery.omit({ q: true }).extend({
   status: z.enum(['new', 'scheduled', 'declined', 'done', 'open'], 'Use new, scheduled, declined, done or open').optional(),
 })
 
-export const preferencesSchema = z.object({
-  unitSystem: z.enum(['us', 'metric'], 'Choose US or metric units').nullable().optional(),
+/** PATCH of the portal preferences: exactly the fields (and the contacts) sent change. */
+export const preferencesSchema = updateSchema({
+  unitSystem: z.enum(['us', 'metric'], 'Choose US or metric units').nullable(),
   contacts: z.array(z.object({
     id: z.uuid('Not a valid contact'),
     getsReports: z.boolean(),
     getsInvoices: z.boolean(),
     getsAlerts: z.boolean(),
-  })).max(50).optional(),
-}).refine(p => p.unitSystem !== undefined || p.contacts !== undefined, { path: ['unitSystem'], message: 'Nothing to change' })
+  })).max(50),
+})
 export type PreferencesInput = z.output<typeof preferencesSchema>

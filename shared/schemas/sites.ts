@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { createSchema, decimal, text, updateSchema } from './fields'
 
 export const HAZARDS = ['dogs', 'deep_water', 'overhead_lines', 'steep_ground', 'other'] as const
 export const HAZARD_LABELS: Record<(typeof HAZARDS)[number], string> = {
@@ -9,42 +10,33 @@ export const HAZARD_LABELS: Record<(typeof HAZARDS)[number], string> = {
   other: 'Other (see notes)',
 }
 
-const text = (max: number) => z.string().trim().max(max, `Use at most ${max} characters`).default('')
+const latitude = decimal('Latitude', -90, 90, { min: 'Latitude is between -90 and 90', max: 'Latitude is between -90 and 90' })
+const longitude = decimal('Longitude', -180, 180, { min: 'Longitude is between -180 and 180', max: 'Longitude is between -180 and 180' })
+const altitude = decimal('Altitude', -500, 6000, { min: 'Altitude is between -500 and 6000 m', max: 'Altitude is between -500 and 6000 m' })
 
-export const siteSchema = z.object({
-  customerId: z.uuid('Choose a customer'),
-  name: z.string().trim().min(1, 'Name the site, e.g. Home or Courtyard').max(120),
-  line1: z.string().trim().min(1, 'Enter the street address').max(200),
+/** A site's fields (all but its customer), without defaults: create and update are made from them. */
+const siteFields = {
+  name: text(120, 'Name the site, e.g. Home or Courtyard'),
+  line1: text(200, 'Enter the street address'),
   line2: text(200),
-  city: z.string().trim().min(1, 'Enter the town or city').max(120),
+  city: text(120, 'Enter the town or city'),
   region: text(120),
   postcode: text(20),
-  country: z.string().trim().toUpperCase().regex(/^[A-Z]{2}$/, 'Use a two-letter country code, e.g. US').default('US'),
-  latitude: z.number('Latitude is a number').min(-90, 'Latitude is between -90 and 90').max(90, 'Latitude is between -90 and 90').nullish(),
-  longitude: z.number('Longitude is a number').min(-180, 'Longitude is between -180 and 180').max(180, 'Longitude is between -180 and 180').nullish(),
-  altitudeM: z.number('Altitude is a number').min(-500, 'Altitude is between -500 and 6000 m').max(6000, 'Altitude is between -500 and 6000 m').nullish(),
-  accessNotes: text(2000),
-  gateCode: text(80),
-  hazards: z.array(z.enum(HAZARDS, 'Unknown hazard')).max(HAZARDS.length).default([]).transform(h => [...new Set(h)]),
-  hazardNotes: text(2000),
-}).refine(s => (s.latitude == null) === (s.longitude == null), { path: ['longitude'], message: 'Give both latitude and longitude, or neither' })
-export type SiteInput = z.output<typeof siteSchema>
-
-export const siteUpdateSchema = z.object({
-  name: z.string().trim().min(1, 'Name the site, e.g. Home or Courtyard').max(120),
-  line1: z.string().trim().min(1, 'Enter the street address').max(200),
-  line2: text(200),
-  city: z.string().trim().min(1, 'Enter the town or city').max(120),
-  region: text(120),
-  postcode: text(20),
-  country: z.string().trim().toUpperCase().regex(/^[A-Z]{2}$/, 'Use a two-letter country code, e.g. US'),
-  latitude: z.number().min(-90).max(90).nullable(),
-  longitude: z.number().min(-180).max(180).nullable(),
-  altitudeM: z.number().min(-500).max(6000).nullable(),
+  country: text(10).toUpperCase().regex(/^[A-Z]{2}$/, 'Use a two-letter country code, e.g. US'),
+  latitude: latitude.nullable(),
+  longitude: longitude.nullable(),
+  altitudeM: altitude.nullable(),
   accessNotes: text(2000),
   gateCode: text(80),
   hazards: z.array(z.enum(HAZARDS, 'Unknown hazard')).max(HAZARDS.length).transform(h => [...new Set(h)]),
   hazardNotes: text(2000),
-  archived: z.boolean(),
-}).partial()
+}
+
+export const siteSchema = createSchema({ customerId: z.uuid('Choose a customer'), ...siteFields }, {
+  line2: '', region: '', postcode: '', country: 'US', latitude: null, longitude: null, altitudeM: null, accessNotes: '', gateCode: '', hazards: [], hazardNotes: '',
+}).refine(s => (s.latitude == null) === (s.longitude == null), { path: ['longitude'], message: 'Give both latitude and longitude, or neither' })
+export type SiteInput = z.output<typeof siteSchema>
+
+/** PATCH: exactly the fields sent change; `archived` alone archives or restores. */
+export const siteUpdateSchema = updateSchema(siteFields, { archived: z.boolean('Choose true or false') })
 export type SiteUpdateInput = z.output<typeof siteUpdateSchema>

@@ -1,10 +1,11 @@
 import { z } from 'zod'
 import { ROLES } from '../utils/roles'
 import { email, newPassword } from './auth'
+import { text, updateSchema } from './fields'
 
 export const userCreateSchema = z.object({
   email,
-  name: z.string().trim().min(1, 'Enter a name').max(120),
+  name: text(120, 'Enter a name'),
   role: z.enum(ROLES, 'Choose owner, technician or customer'),
   password: newPassword,
   customerId: z.uuid('Choose a customer').nullish(),
@@ -14,10 +15,11 @@ export const userCreateSchema = z.object({
 })
 export type UserCreateInput = z.output<typeof userCreateSchema>
 
-export const userUpdateSchema = z.object({
-  name: z.string().trim().min(1, 'Enter a name').max(120).optional(),
-  role: z.enum(ROLES, 'Choose owner, technician or customer').optional(),
-  active: z.boolean().optional(),
-  password: newPassword.optional(),
-}).refine(v => Object.keys(v).length > 0, { message: 'Nothing to change', path: ['_'] })
+/** PATCH: exactly the fields sent change. */
+export const userUpdateSchema = updateSchema({
+  name: text(120, 'Enter a name'),
+  role: z.enum(ROLES, 'Choose owner, technician or customer'),
+  active: z.boolean('Choose true or false'),
+  password: newPassword,
+})
 export type UserUpdateInput = z.output<typeof userUpdateSchema>

@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { VISIT_STATUSES, VISIT_TYPES } from '../types/schedule'
-import { localDate } from './contracts'
+import { decimal, localDate, text, updateSchema, wholeNumber } from './fields'
 
 export const boardQuery = z.object({
   from: localDate,
@@ -11,13 +11,13 @@ export const boardQuery = z.object({
 }).refine(q => q.to >= q.from, { path: ['to'], message: 'The end is before the start' })
   .refine(q => (Date.parse(q.to) - Date.parse(q.from)) / 86_400_000 <= 62, { path: ['to'], message: 'Ask for at most 62 days at a time' })
 
-export const visitUpdateSchema = z.object({
-  technicianId: z.uuid('Choose a technician').nullable().optional(),
-  scheduledOn: localDate.optional(),
-  moveReason: z.string().trim().max(300).optional(),
-  durationMinutes: z.number().int().min(10).max(720).optional(),
+/** PATCH: assign, move (with a reason) or resize a visit; exactly the fields sent change. */
+export const visitUpdateSchema = updateSchema({
+  technicianId: z.uuid('Choose a technician').nullable(),
+  scheduledOn: localDate,
+  moveReason: text(300),
+  durationMinutes: wholeNumber('Duration', 10, 720, { min: 'At least 10 minutes', max: 'At most 12 hours' }),
 }).refine(v => v.scheduledOn === undefined || (v.moveReason?.length ?? 0) > 0, { path: ['moveReason'], message: 'Say why the visit moves' })
-  .refine(v => Object.keys(v).length > 0, { path: ['_'], message: 'Nothing to change' })
 export type VisitUpdateInput = z.output<typeof visitUpdateSchema>
 
 export const todayQuery = z.object({
@@ -31,10 +31,11 @@ export const routeOrderSchema = z.object({
   visitIds: z.array(z.uuid('Not a valid visit id')).max(60),
 })
 
-export const staffProfileSchema = z.object({
-  capacityMinutes: z.number().int().min(60, 'At least an hour').max(960, 'At most 16 hours'),
-  homeLatitude: z.number().min(-90).max(90).nullable(),
-  homeLongitude: z.number().min(-180).max(180).nullable(),
-}).partial()
+/** PATCH of a technician's capacity and home base: exactly the fields sent change. */
+export const staffProfileSchema = updateSchema({
+  capacityMinutes: wholeNumber('Capacity', 60, 960, { min: 'At least an hour', max: 'At most 16 hours' }),
+  homeLatitude: decimal('Latitude', -90, 90).nullable(),
+  homeLongitude: decimal('Longitude', -180, 180).nullable(),
+})
 
 export const visitStatusFilter = z.enum(VISIT_STATUSES)

@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { rangeTableSchema } from './features'
+import { text } from './fields'
 
 const conc = (what: string, max: number) => z.number(`${what} is a number`).min(0, `${what} cannot be negative`).max(max, `${what} above ${max} is not plausible`).nullish()
 
@@ -23,7 +24,7 @@ export type WaterReadingInput = z.output<typeof waterReadingSchema>
 
 const labelRateSchema = z.object({
   amount: z.number().positive('Label amount must be more than 0').max(100_000),
-  unit: z.string().trim().min(1).max(20),
+  unit: text(20, 'Give the unit'),
   perLitres: z.number().positive('Label volume must be more than 0').max(10_000_000),
 })
 

@@ -1,11 +1,12 @@
 import { z } from 'zod'
 import { CUSTOMER_KINDS, CUSTOMER_SORTS } from '../../../shared/schemas/customers'
+import { text } from '../../../shared/schemas/fields'
 import { listQuery } from '../../../shared/schemas/lists'
 import { listCustomers } from '../../services/customers'
 
 const query = listQuery(CUSTOMER_SORTS).extend({
   kind: z.enum(CUSTOMER_KINDS).optional(),
-  tag: z.string().trim().toLowerCase().max(40).optional(),
+  tag: text(40).toLowerCase().optional(),
 })
 
 export default defineEventHandler(async (event) => {

@@ -1,12 +1,13 @@
-import { z } from 'zod'
 import { idParam } from '../../../shared/schemas/common'
 import { rangeTableSchema } from '../../../shared/schemas/features'
+import { text, updateSchema } from '../../../shared/schemas/fields'
 import { updateRangeProfile } from '../../services/range-profiles'
 
-const body = z.object({
-  name: z.string().trim().min(1, 'Name the profile').max(120).optional(),
-  ranges: rangeTableSchema.optional(),
-}).refine(b => b.name !== undefined || b.ranges !== undefined, { path: ['_'], message: 'Nothing to change' })
+// Exactly the fields sent change; `ranges` is the whole table.
+const body = updateSchema({
+  name: text(120, 'Name the profile'),
+  ranges: rangeTableSchema,
+})
 
 export default defineEventHandler(async (event) => {
   const user = await requireUser(event, { permission: 'profiles.manage' })

@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { pageQuery } from '../../../shared/schemas/common'
-import { localDate } from '../../../shared/schemas/contracts'
+import { localDate } from '../../../shared/schemas/fields'
 import { listVisits } from '../../services/schedule'
 
 const query = pageQuery.omit({ q: true }).extend({

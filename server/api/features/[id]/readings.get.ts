@@ -1,11 +1,9 @@
 import { z } from 'zod'
-import { idParam } from '../../../../shared/schemas/common'
-import { localDate } from '../../../../shared/schemas/contracts'
+import { idParam, pageQuery } from '../../../../shared/schemas/common'
+import { localDate } from '../../../../shared/schemas/fields'
 import { featureReadings, READING_CSV_COLUMNS, READING_SORTS, toCsv } from '../../../services/history'
 
-const query = z.object({
-  page: z.coerce.number().int().min(1).default(1),
-  pageSize: z.coerce.number().int().min(1).max(100).default(25),
+const query = pageQuery.omit({ q: true }).extend({
   sort: z.enum(READING_SORTS).default('takenAt'),
   dir: z.enum(['asc', 'desc']).default('desc'),
   from: localDate.optional(),

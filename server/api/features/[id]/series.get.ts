@@ -1,11 +1,12 @@
 import { z } from 'zod'
 import { idParam } from '../../../../shared/schemas/common'
+import { text } from '../../../../shared/schemas/fields'
 import { CHART_PARAMETERS, featureSeries, SERIES_RANGES } from '../../../services/chart-data'
 
 const query = z.object({
   range: z.enum(SERIES_RANGES, 'Choose season, year or all').default('year'),
   /** A comma list of parameters; all measured ones when left out. */
-  parameters: z.string().trim().max(400).optional()
+  parameters: text(400).optional()
     .transform(s => (s ? [...new Set(s.split(',').map(p => p.trim()).filter(Boolean))] : undefined))
     .pipe(z.array(z.enum(CHART_PARAMETERS, 'Not a chartable parameter')).optional()),
 })

@@ -1,11 +1,12 @@
 import { z } from 'zod'
 import { idParam } from '../../../../shared/schemas/common'
+import { text } from '../../../../shared/schemas/fields'
 import { addVisitPhoto } from '../../../services/photos'
 
 const fields = z.object({
   id: z.uuid('Not a valid photo id'),
   featureId: z.uuid('Not a valid feature id').optional(),
-  caption: z.string().trim().max(200).default(''),
+  caption: text(200).default(''),
 })
 
 // multipart/form-data: file, id (made by the phone, so a retry is the same photo), featureId?, caption?
