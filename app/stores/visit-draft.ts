@@ -48,6 +48,8 @@ export const useVisitDraftStore = defineStore('visit-draft', () => {
 
   function changed() {
     dirty.value = true
+    // Never "All saved" while a change waits for its send.
+    if (state.value === 'saved') state.value = 'saving'
     persist()
     scheduleSave(800)
   }
