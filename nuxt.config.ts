@@ -2,6 +2,9 @@
 export default defineNuxtConfig({
   compatibilityDate: '2026-11-01',
   devtools: { enabled: false },
+  // RILLBOOK_DEBUG_HYDRATION=1 at build time makes Vue name what differs in a hydration mismatch
+  // (the browser tests fail on any; this tells you where).
+  debug: process.env.RILLBOOK_DEBUG_HYDRATION === '1' ? { hydration: true } : false,
   telemetry: false,
   modules: ['@nuxt/eslint', '@nuxtjs/tailwindcss', '@pinia/nuxt', '@sidebase/nuxt-auth', 'nuxt-security'],
   css: ['~/assets/css/main.css'],

@@ -29,6 +29,7 @@ export default defineConfig({
           include: ['tests/browser/**/*.test.ts'],
           environment: 'node',
           globalSetup: ['tests/setup/server.ts', 'tests/setup/chromium.ts'],
+          setupFiles: ['tests/setup/browser-page-errors.ts'],
           testTimeout: 60_000,
           hookTimeout: 240_000,
           fileParallelism: false,

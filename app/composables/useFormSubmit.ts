@@ -4,18 +4,37 @@ import type { z } from 'zod'
  * The one way forms submit: validate with the shared zod schema (errors in place), send, and on
  * failure show the server's message and its per-field errors. `submit` resolves to the server's
  * answer, or undefined when nothing was saved.
+ *
+ * `invalid` carries what the form itself could not read (letters in a number field, by the SI
+ * field's path, e.g. `shape.lengthM`): those are shown in place and nothing is sent. A form-level
+ * message always points at a field marked on the page; when no field shows its error, the
+ * message says what is wrong itself, so a form never fails without saying why.
  */
 export function useFormSubmit() {
   const fields = ref<Record<string, string>>({})
   const message = ref('')
   const busy = ref(false)
 
-  async function submit<S extends z.ZodType, R>(schema: S, values: unknown, send: (data: z.output<S>) => Promise<R>): Promise<R | undefined> {
+  async function pointAtFields(lead: string) {
+    const problems = [...new Set(Object.values(fields.value))]
+    message.value = lead
+    if (!import.meta.client || !problems.length) return
+    await nextTick()
+    const marked = [...document.querySelectorAll<HTMLElement>('.field-error')].filter(el => el.offsetParent !== null || el.getClientRects().length > 0)
+    if (marked.length) {
+      marked[0]!.scrollIntoView({ block: 'center' })
+      return
+    }
+    message.value = `Not saved: ${problems.join(' ')}`
+  }
+
+  async function submit<S extends z.ZodType, R>(schema: S, values: unknown, send: (data: z.output<S>) => Promise<R>, opts: { invalid?: Record<string, string> } = {}): Promise<R | undefined> {
     message.value = ''
+    const typed = Object.fromEntries(Object.entries(opts.invalid ?? {}).filter(([, m]) => m))
     const parsed = schema.safeParse(values)
-    if (!parsed.success) {
-      fields.value = fieldErrors(parsed.error)
-      message.value = 'Check the fields marked below.'
+    if (!parsed.success || Object.keys(typed).length) {
+      fields.value = { ...(parsed.success ? {} : fieldErrors(parsed.error)), ...typed }
+      await pointAtFields('Check the fields marked below.')
       return undefined
     }
     fields.value = {}
@@ -25,8 +44,8 @@ export function useFormSubmit() {
     }
     catch (err) {
       const e = toApiError(err)
-      message.value = e.message
       fields.value = e.fields
+      await pointAtFields(e.message)
       return undefined
     }
     finally {

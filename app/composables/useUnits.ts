@@ -1,19 +1,38 @@
 import {
-  feetToMetres, litresPerHourToUsGph, litresToUsGallons, metresToFeet, squareMetresToSquareFeet, usGphToLitresPerHour,
+  celsiusToFahrenheit, fahrenheitToCelsius, feetToMetres, litresPerHourToUsGph, litresToUsGallons, metresToFeet, squareMetresToSquareFeet, usGphToLitresPerHour,
 } from '#shared/utils/water-chemistry'
+import { readNumber, type NumberRule, type ReadNumber } from '~/utils/numbers'
 
 const nf = (digits: number) => new Intl.NumberFormat('en-US', { maximumFractionDigits: digits })
 
+/** What a number field holds, for converting from the company's units to SI. */
+export type QuantityKind = 'length' | 'flow' | 'volume' | 'temperature' | 'plain'
+
 /**
- * The company's unit system for display and input. Values are stored in SI; forms convert what
- * people type with `lengthIn` / `flowIn` before validating.
+ * The company's unit system for display and input. Values are stored in SI; forms read what
+ * people type with `read(text, kind, rule)` (the number in SI, or the error to show in place)
+ * before validating.
  */
 export function useUnits() {
   const { data: company } = useFetch('/api/company', { key: 'company' })
   const system = computed(() => company.value?.unitSystem ?? 'us')
   const us = computed(() => system.value === 'us')
+  const toSi: Record<QuantityKind, (v: number) => number> = {
+    length: v => (us.value ? feetToMetres(v) : v),
+    flow: v => (us.value ? usGphToLitresPerHour(v) : v),
+    volume: v => (us.value ? v * 3.785411784 : v),
+    temperature: v => (us.value ? fahrenheitToCelsius(v) : v),
+    plain: v => v,
+  }
   return {
     system,
+    /** The text of a number field in the company's unit → `{ value }` in SI (null when empty) or `{ error }` to show by the field. */
+    read: (text: string | number | null | undefined, kind: QuantityKind = 'plain', rule: NumberRule = {}): ReadNumber => {
+      const r = readNumber(text, rule)
+      return r.value == null ? r : { value: toSi[kind](r.value), error: '' }
+    },
+    temperatureUnit: computed(() => (us.value ? '°F' : '°C')),
+    temperatureOut: (c: number | null | undefined) => (c == null ? null : Number((us.value ? celsiusToFahrenheit(c) : c).toFixed(1))),
     lengthUnit: computed(() => (us.value ? 'ft' : 'm')),
     flowUnit: computed(() => (us.value ? 'US gal/h' : 'L/h')),
     volumeUnit: computed(() => (us.value ? 'US gal' : 'L')),

@@ -25,11 +25,14 @@ export const useVisitDraftStore = defineStore('visit-draft', () => {
   const state = ref<SaveState>('saved')
   const message = ref('')
   const dirty = ref(false)
+  /** What was typed but cannot be used (letters in a number field), by field key: shown by the field and in the footer, never saved. */
+  const problems = ref<Record<string, string>>({})
   let timer: ReturnType<typeof setTimeout> | undefined
   let retryTimer: ReturnType<typeof setInterval> | undefined
 
   function load(id: string, fromServer: VisitDraft) {
     visitId.value = id
+    problems.value = {}
     const kept = import.meta.client ? localStorage.getItem(storageKey(id)) : null
     const local = kept ? JSON.parse(kept) as { draft: VisitDraft, dirty: boolean } : null
     // Unsaved work on this phone wins over the server's copy.
@@ -45,6 +48,8 @@ export const useVisitDraftStore = defineStore('visit-draft', () => {
 
   function changed() {
     dirty.value = true
+    // Never "All saved" while a change waits for its send.
+    if (state.value === 'saved') state.value = 'saving'
     persist()
     scheduleSave(800)
   }
@@ -89,11 +94,22 @@ export const useVisitDraftStore = defineStore('visit-draft', () => {
   }
   if (import.meta.client) window.addEventListener('online', () => { if (dirty.value) void save() })
 
+  /** Marks (message) or clears (empty) a field whose text cannot be used; keys starting with `prefix:` all clear with `clearProblems(prefix)`. */
+  function setProblem(key: string, text: string) {
+    const next = { ...problems.value }
+    if (text) next[key] = text
+    else delete next[key]
+    problems.value = next
+  }
+  function clearProblems(prefix: string) {
+    problems.value = Object.fromEntries(Object.entries(problems.value).filter(([k]) => !k.startsWith(`${prefix}:`)))
+  }
+
   function forget() {
     if (import.meta.client && visitId.value) localStorage.removeItem(storageKey(visitId.value))
     dirty.value = false
     state.value = 'saved'
   }
 
-  return { visitId, draft, state, message, dirty, load, changed, save, forget }
+  return { visitId, draft, state, message, dirty, problems, load, changed, save, forget, setProblem, clearProblems }
 })

@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser } from 'playwright-core'
 import { baseUrl, demo } from '../helpers/api'
-import { launch, shot, signInThroughForm, VIEWPORTS } from '../helpers/browser'
+import { allowPageErrors, launch, shot, signInThroughForm, VIEWPORTS } from '../helpers/browser'
 
 let browser: Browser
 beforeAll(async () => { browser = await launch() })
@@ -41,6 +41,7 @@ describe('signing in through the form', () => {
 
   it('shows the server\'s message for a wrong password and stays on the sign-in page', async () => {
     const page = await browser.newPage({ viewport: VIEWPORTS.phone })
+    allowPageErrors(/status of 401 \(Wrong e-mail or password\).*\/api\/auth\/login/)
     await signInThroughForm(page, demo.dario, 'definitely-wrong')
     await page.getByRole('alert').filter({ hasText: 'Wrong e-mail or password' }).waitFor()
     expect(new URL(page.url()).pathname).toBe('/login')
@@ -83,6 +84,7 @@ describe('the error page', () => {
     const page = await context.newPage()
     await signInThroughForm(page, demo.tess)
     await page.waitForURL(url => url.pathname === '/today')
+    allowPageErrors(/status of 404 \(Page not found: \/no-such-page\)/)
     await page.goto(`${baseUrl()}/no-such-page`)
     await page.getByRole('heading', { name: 'We could not find that page' }).waitFor()
     await shot(page, 'error-404-phone')

@@ -1,7 +1,7 @@
 import { createRequire } from 'node:module'
 import { mkdirSync } from 'node:fs'
 import { resolve } from 'node:path'
-import { chromium, type Browser, type Page } from 'playwright-core'
+import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core'
 import { baseUrl, DEMO_PASSWORD } from './api'
 
 export const ARTIFACTS = resolve(import.meta.dirname, '../artifacts')
@@ -12,12 +12,52 @@ export const VIEWPORTS = {
   desktop: { width: 1280, height: 800 },
 } as const
 
-export function launch(): Promise<Browser> {
-  return chromium.launch({
+/**
+ * Console errors and uncaught page errors seen since the current test began, from every page of
+ * every browser `launch()` gave. `tests/setup/browser-page-errors.ts` fails the test after it ends
+ * when any are left; a test that causes one on purpose names it with `allowPageErrors()`.
+ */
+const pageErrors: string[] = []
+let allowed: RegExp[] = []
+
+function watchContext(context: BrowserContext) {
+  context.on('console', (m) => {
+    if (m.type() !== 'error') return
+    const where = m.location()?.url
+    pageErrors.push(`console error on ${m.page()?.url() ?? '?'}: ${m.text()}${where ? ` (${where})` : ''}`)
+  })
+  context.on('weberror', e => pageErrors.push(`uncaught error on ${e.page()?.url() ?? '?'}: ${e.error().stack ?? e.error().message}`))
+  return context
+}
+
+/** Lets console errors matching one of the patterns pass in the current test (e.g. the 401 of a wrong password). */
+export function allowPageErrors(...patterns: RegExp[]) {
+  allowed.push(...patterns)
+}
+
+/** The errors not allowed since the last call; resets the list and the allowances (one test's worth). */
+export function takePageErrors() {
+  const left = pageErrors.filter(e => !allowed.some(p => p.test(e)))
+  pageErrors.length = 0
+  allowed = []
+  return left
+}
+
+export async function launch(): Promise<Browser> {
+  const browser = await chromium.launch({
     executablePath: process.env.CHROMIUM_PATH || '/usr/bin/chromium',
     args: ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--disable-background-networking',
       '--disable-component-update', '--disable-sync', '--no-first-run'],
   })
+  const newContext = browser.newContext.bind(browser)
+  browser.newContext = async (...args) => watchContext(await newContext(...args))
+  browser.newPage = async (...args) => {
+    const context = await browser.newContext(...args)
+    const page = await context.newPage()
+    page.on('close', () => { void context.close() })
+    return page
+  }
+  return browser
 }
 
 export async function signInThroughForm(page: Page, email: string, password = DEMO_PASSWORD) {
