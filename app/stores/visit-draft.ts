@@ -96,10 +96,8 @@ export const useVisitDraftStore = defineStore('visit-draft', () => {
 
   /** Marks (message) or clears (empty) a field whose text cannot be used; keys starting with `prefix:` all clear with `clearProblems(prefix)`. */
   function setProblem(key: string, text: string) {
-    const next = { ...problems.value }
-    if (text) next[key] = text
-    else delete next[key]
-    problems.value = next
+    const rest = Object.fromEntries(Object.entries(problems.value).filter(([k]) => k !== key))
+    problems.value = text ? { ...rest, [key]: text } : rest
   }
   function clearProblems(prefix: string) {
     problems.value = Object.fromEntries(Object.entries(problems.value).filter(([k]) => !k.startsWith(`${prefix}:`)))
