@@ -34,7 +34,7 @@ interface Guarded { bodyGuard?: LimitedBody, bodyBytes?: Promise<Buffer | undefi
 const megabytes = (bytes: number) => `${Math.round(bytes / 100_000) / 10} MB`
 
 /** After a 413, what may still arrive (and is thrown away) before the connection is cut. */
-const LINGER_BYTES = 4 * 1024 * 1024
+const LINGER_BYTES = 64 * 1024 * 1024
 const LINGER_MS = 5000
 
 /**
