@@ -10,10 +10,14 @@ import type { z } from 'zod'
  * message always points at a field marked on the page; when no field shows its error, the
  * message says what is wrong itself, so a form never fails without saying why.
  */
+const CHECK_FIELDS = 'Check the fields marked below.'
+
 export function useFormSubmit() {
   const fields = ref<Record<string, string>>({})
   const message = ref('')
   const busy = ref(false)
+  // Once every marked field has been put right, the lead that pointed at them goes too.
+  watch(fields, (f) => { if (!Object.keys(f).length && message.value === CHECK_FIELDS) message.value = '' })
 
   async function pointAtFields(lead: string) {
     const problems = [...new Set(Object.values(fields.value))]
@@ -34,7 +38,7 @@ export function useFormSubmit() {
     const parsed = schema.safeParse(values)
     if (!parsed.success || Object.keys(typed).length) {
       fields.value = { ...(parsed.success ? {} : fieldErrors(parsed.error)), ...typed }
-      await pointAtFields('Check the fields marked below.')
+      await pointAtFields(CHECK_FIELDS)
       return undefined
     }
     fields.value = {}

@@ -88,6 +88,9 @@ describe('the customer picker and the contract form', () => {
       expect(await feature.isChecked()).toBe(true)
       const plan = page.getByLabel('Plan', { exact: true })
       await plan.selectOption(await plan.locator('option', { hasText: planName }).getAttribute('value'))
+      // Every marked field is put right: nothing marked, so no message says to check one.
+      expect(await page.locator('.field-error').count()).toBe(0)
+      await page.getByText('Check the fields marked below.').waitFor({ state: 'hidden' })
       await shot(page, `contract-form-filled-${size}`)
       await page.getByRole('button', { name: 'Sign up and schedule' }).click()
       await page.waitForURL(url => /^\/contracts\/[0-9a-f-]{36}$/.test(url.pathname))
