@@ -48,7 +48,36 @@ beforeAll(async () => {
   tokens.technician = await tokenFor(demo.tess)
   tokens.customer = await tokenFor(demo.priya)
 })
-afterAll(async () => { await db?.end() })
+
+// A random body is sometimes a valid one: a PUT of closed days or a PATCH of the company then
+// changes the demo company itself. Those records are put back afterwards, so later tests (and
+// the seed's idempotence check) see the demo as seeded.
+const RESTORED = ['companies', 'closed_days']
+let saved: Record<string, unknown[]> = {}
+beforeAll(async () => {
+  // json_agg keeps dates and times as PostgreSQL wrote them (pg would turn a date into a local Date).
+  for (const t of RESTORED) saved[t] = (await db.query(`select coalesce(json_agg(t), '[]') as rows from ${t} t`)).rows[0].rows
+})
+afterAll(async () => {
+  if (db && Object.keys(saved).length) {
+    await db.query('begin')
+    for (const t of RESTORED) {
+      const cols = (await db.query(`select * from ${t} limit 0`)).fields.map(f => f.name)
+      const list = cols.map(c => `"${c}"`).join(', ')
+      const rows = `select ${list} from json_populate_recordset(null::${t}, $1::json)`
+      if (t === 'closed_days') {
+        await db.query('delete from closed_days')
+        await db.query(`insert into closed_days (${list}) ${rows}`, [JSON.stringify(saved[t])])
+      } else {
+        const set = cols.filter(c => c !== 'id').map(c => `"${c}" = excluded."${c}"`).join(', ')
+        await db.query(`insert into ${t} (${list}) ${rows} on conflict (id) do update set ${set}`, [JSON.stringify(saved[t])])
+      }
+    }
+    await db.query('commit')
+    saved = {}
+  }
+  await db?.end()
+})
 
 async function counts() {
   const { rows } = await db.query(`select ${TABLES.map(t => `(select count(*) from ${t})::int as ${t}`).join(', ')}`)
