@@ -8,6 +8,8 @@ import { WaterInputError } from './errors'
 import { oxygenSaturationMgL, STANDARD_PRESSURE_KPA } from './oxygen'
 import { saltGLToChlorideMgL } from './units'
 import { checkPH, checkPressureKPa, checkTempC, finite, nonNegative } from './validate'
+import { formatQuantity, type UnitSystem } from './format'
+import { formatParameter, PARAMETER_CATALOGUE } from './parameters'
 
 /** Keep chloride at least 10 × nitrite (Durborow, Crosby & Brunson, SRAC 462, Nitrite in Fish Ponds). */
 export const NITRITE_CHLORIDE_MIN_RATIO = 10
@@ -54,81 +56,64 @@ export function totalAmmoniaAsN(reading: WaterReading): number | null {
   return reading.ammoniaBasis === 'NH3' ? ammoniaToNitrogen(tan) : tan
 }
 
-interface Wording { label: string, unit: string, low?: [watch: string, act: string], high?: [watch: string, act: string] }
+interface Wording { low?: [watch: string, act: string], high?: [watch: string, act: string] }
 
 const WORDS: Record<Parameter, Wording> = {
   temperatureC: {
-    label: 'Water temperature', unit: '°C',
     low: ['cold water — feed less', 'very cold — stop feeding and keep a hole in any ice'],
     high: ['warm water holds less oxygen — add aeration and shade', 'too warm for fish — aerate, shade and feed less — act today'],
   },
   pH: {
-    label: 'pH', unit: '',
     low: ['pH is drifting down — check KH', 'the water is turning acidic — check KH'],
     high: ['the water is quite alkaline — ammonia is more toxic as pH rises', 'the water is strongly alkaline — look for fresh mortar or concrete and heavy algae — act today'],
   },
   totalAmmoniaMgL: {
-    label: 'Total ammonia', unit: 'mg/L as N',
     high: ['ammonia is building up — feed less and check the filter', 'ammonia is high — change some water and feed less — act today'],
   },
   nh3MgL: {
-    label: 'Un-ionized ammonia', unit: 'mg/L',
     high: ['stressful to fish over time — feed less and check the filter', 'harmful to fish — act today'],
   },
   nitriteMgL: {
-    label: 'Nitrite', unit: 'mg/L',
     high: ['the filter is not keeping up — feed less and retest', 'harmful to fish — change some water — act today'],
   },
   nitrateMgL: {
-    label: 'Nitrate', unit: 'mg/L',
     high: ['feeds algae — plan a partial water change', 'high — change some water and review feeding and stocking'],
   },
   khMgL: {
-    label: 'KH', unit: 'mg/L',
     low: ['the buffer is getting low — pH may swing', 'the water has almost no buffer — pH can crash — act today'],
   },
-  ghMgL: { label: 'GH', unit: 'mg/L' },
+  ghMgL: {},
   dissolvedOxygenMgL: {
-    label: 'Dissolved oxygen', unit: 'mg/L',
     low: ['oxygen is getting low — add aeration', 'fish may struggle for oxygen — aerate now — act today'],
   },
   doSaturationPct: {
-    label: 'Oxygen saturation', unit: '%',
     low: ['the water holds less oxygen than it could — add aeration or water movement', 'very little oxygen for this temperature — aerate now — act today'],
   },
   saltGL: {
-    label: 'Salt', unit: 'g/L',
     high: ['more salt than a standing pond level — hard on plants', 'as strong as a short treatment bath — too much to leave in the pond; change some water'],
   },
   chlorineMgL: {
-    label: 'Chlorine', unit: 'mg/L',
     high: ['chlorine from tap water — add dechlorinator', 'chlorine is toxic to fish — add dechlorinator now — act today'],
   },
   phosphateMgL: {
-    label: 'Phosphate', unit: 'mg/L',
     high: ['feeds algae — check feeding and plant cover', 'strongly feeds algae — check feeding, plant cover and fertiliser run-off'],
   },
 }
 
-function fmt(parameter: Parameter, v: number): string {
-  const s = Math.abs(v) >= 1000 ? String(Math.round(v)) : String(Number(v.toPrecision(3)))
-  if (parameter === 'pH' && Number.isInteger(v)) return v.toFixed(1)
-  return s
-}
-
-function withUnit(parameter: Parameter, v: number): string {
-  const u = WORDS[parameter].unit
-  return u ? `${fmt(parameter, v)} ${u}` : fmt(parameter, v)
-}
+/** A value of `parameter` with its unit, in the system's units. */
+const withUnit = (parameter: Parameter, v: number, system: UnitSystem) => formatParameter(parameter, v, system)
+/** The same, without the unit (a limit after a value that carries it). */
+const bare = (parameter: Parameter, v: number, system: UnitSystem) => formatParameter(parameter, v, system, { bare: true })
 
 /** Classifies one value against one range (strict comparisons, act before watch). */
-export function classifyParameterValue(parameter: Parameter, value: number, range: ParameterRange): ParameterEvaluation {
+export function classifyParameterValue(parameter: Parameter, value: number, range: ParameterRange, system: UnitSystem = 'metric'): ParameterEvaluation {
   const w = WORDS[parameter]
-  const head = `${w.label} ${withUnit(parameter, value)}`
+  const label = PARAMETER_CATALOGUE[parameter].label
+  const head = `${label} ${withUnit(parameter, value, system)}`
   const crossed = (status: ReadingStatus, limit: number, dir: 'low' | 'high'): ParameterEvaluation => {
     const text = w[dir]?.[status === 'act' ? 1 : 0]
       ?? `${dir === 'low' ? 'below' : 'above'} the range set for this feature${status === 'act' ? ' — act today' : ''}`
-    return { parameter, value, status, limit, reason: `${head} is ${dir === 'low' ? 'below' : 'above'} ${fmt(parameter, limit)}: ${text}` }
+    return { parameter, value, status, limit, reason: `${head} is ${dir === 'low' ? 'below' : 'above'} ${bare(parameter, limit, system)}: ${text}` }
   }
   if (range.actBelow !== undefined && value < range.actBelow) return crossed('act', range.actBelow, 'low')
   if (range.actAbove !== undefined && value > range.actAbove) return crossed('act', range.actAbove, 'high')
@@ -137,10 +122,10 @@ export function classifyParameterValue(parameter: Parameter, value: number, rang
   const lo = range.watchBelow ?? range.actBelow
   const hi = range.watchAbove ?? range.actAbove
   let reason: string
-  if (lo !== undefined && hi !== undefined) reason = `${head} is within ${fmt(parameter, lo)}–${fmt(parameter, hi)}`
-  else if (hi === 0 && value === 0) reason = `${w.label}: none detected`
-  else if (hi !== undefined) reason = `${head} is at or below ${fmt(parameter, hi)}`
-  else if (lo !== undefined) reason = `${head} is at or above ${fmt(parameter, lo)}`
+  if (lo !== undefined && hi !== undefined) reason = `${head} is within ${bare(parameter, lo, system)}–${bare(parameter, hi, system)}`
+  else if (hi === 0 && value === 0) reason = `${label}: none detected`
+  else if (hi !== undefined) reason = `${head} is at or below ${bare(parameter, hi, system)}`
+  else if (lo !== undefined) reason = `${head} is at or above ${bare(parameter, lo, system)}`
   else reason = `${head}: no limits set`
   return { parameter, value, status: 'ok', limit: null, reason }
 }
@@ -151,7 +136,8 @@ export function classifyParameterValue(parameter: Parameter, value: number, rang
  * oxygen saturation (when DO and temperature are present), then rates every measured or computed
  * parameter that has a range. Also applies the nitrite:chloride rule of SRAC 462 when salt is known.
  */
-export function evaluateReading(reading: WaterReading, ranges: RangeTable, context?: { pressureKPa?: number }): ReadingEvaluation {
+export function evaluateReading(reading: WaterReading, ranges: RangeTable, context?: { pressureKPa?: number, unitSystem?: UnitSystem }): ReadingEvaluation {
+  const system = context?.unitSystem ?? 'metric'
   const m = validateWaterReading(reading)
   const pressureKPa = context?.pressureKPa === undefined ? STANDARD_PRESSURE_KPA : checkPressureKPa(context.pressureKPa)
   const tanN = totalAmmoniaAsN(reading)
@@ -190,7 +176,7 @@ export function evaluateReading(reading: WaterReading, ranges: RangeTable, conte
     const v = values[p]
     const r = ranges?.[p]
     if (v === undefined) continue
-    if (r) parameters.push(classifyParameterValue(p, v, r))
+    if (r) parameters.push(classifyParameterValue(p, v, r, system))
   }
 
   // Nitrite:chloride (SRAC 462). Nitrite is taken as reported (mg/L NO2-); chloride comes from the salt reading.
@@ -198,7 +184,7 @@ export function evaluateReading(reading: WaterReading, ranges: RangeTable, conte
   if (nitrite !== undefined && nitrite > 0 && m.saltGL !== undefined) {
     const chloride = saltGLToChlorideMgL(m.saltGL)
     if (chloride < NITRITE_CHLORIDE_MIN_RATIO * nitrite) {
-      const note = `chloride ${fmt('nitriteMgL', chloride)} mg/L is below 10 × nitrite, so nitrite is more toxic to fish — add pond salt or change some water (SRAC 462)`
+      const note = `chloride ${formatQuantity('concentration', chloride, system, { digits: 0 })} is below 10 × nitrite, so nitrite is more toxic to fish — add pond salt or change some water (SRAC 462)`
       const i = parameters.findIndex(e => e.parameter === 'nitriteMgL')
       const existing = i >= 0 ? parameters[i]! : undefined
       if (existing && existing.status !== 'ok') {
@@ -206,7 +192,7 @@ export function evaluateReading(reading: WaterReading, ranges: RangeTable, conte
       } else {
         const entry: ParameterEvaluation = {
           parameter: 'nitriteMgL', value: nitrite, status: 'watch', limit: chloride / NITRITE_CHLORIDE_MIN_RATIO,
-          reason: `Nitrite ${withUnit('nitriteMgL', nitrite)} with ${note}`,
+          reason: `Nitrite ${withUnit('nitriteMgL', nitrite, system)} with ${note}`,
         }
         if (existing) parameters[i] = entry
         else parameters.splice(parameters.filter(e => PARAMETERS.indexOf(e.parameter) < PARAMETERS.indexOf('nitriteMgL')).length, 0, entry)
