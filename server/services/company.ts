@@ -13,7 +13,7 @@ const columns = {
   taxRateBasisPoints: companies.taxRateBasisPoints, unitSystem: companies.unitSystem, timeZone: companies.timeZone,
   workingDays: companies.workingDays, dayStartTime: companies.dayStartTime,
   baseLatitude: companies.baseLatitude, baseLongitude: companies.baseLongitude,
-  address: companies.address, billingEmail: companies.billingEmail, paymentTermsDays: companies.paymentTermsDays,
+  address: companies.address, phone: companies.phone, billingEmail: companies.billingEmail, paymentTermsDays: companies.paymentTermsDays,
 }
 
 /** The company's settings; `unitSystem` is the one this sign-in reads in (its own choice, else the company's). */
