@@ -1,7 +1,7 @@
 // Invented water tests for the demo's finished visits: seasonal temperatures, a gentle pH and KH
 // drift, and a few out-of-range episodes (an ammonia spike, low KH, a nitrite bloom, low oxygen).
 import { and, asc, eq, inArray } from 'drizzle-orm'
-import { companies, contractFeatures, readings, sites, visits, waterFeatures } from '../../server/db/schema'
+import { companies, contractFeatures, sites, visits, waterFeatures, type readings } from '../../server/db/schema'
 import { evaluateAtSite, insertReadingsOnce, readingRow } from '../../server/services/readings'
 import type { Tx } from '../../server/utils/db'
 import { DEFAULT_PROFILES, mergeRanges, profileKeyForKind } from '../../shared/utils/water-chemistry'

@@ -63,7 +63,8 @@ describe('running a visit', () => {
     const csv = await fetch(`${baseUrl()}/api/features/${v.featureId}/readings?format=csv`, { headers: { authorization: `Bearer ${owner}` } })
     expect(csv.headers.get('content-type')).toMatch(/text\/csv/)
     const lines = (await csv.text()).trim().split('\r\n')
-    expect(lines[0]).toMatch(/^takenAt,source,temperatureC,pH/)
+    // Headed by the catalogue's labels in the company's units (a US company).
+    expect(lines[0]).toMatch(/^Taken at,Entered by,Water temperature \(°F\),pH,/)
     expect(lines).toHaveLength(3)
   })
 
