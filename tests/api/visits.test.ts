@@ -123,7 +123,9 @@ describe('running a visit', () => {
     expect(mail.subject).toMatch(/Routine maintenance report/)
     expect(mail.text).toContain('pH 7.6')
     expect(mail.text).toMatch(/KH 60 mg\/L .*below/)
-    expect(mail.text).toContain('Sodium bicarbonate (KH buffer) — 250 g')
+    // In the company's units (US): 250 g / 28.349523125 g per oz (NIST Handbook 44) = 8.8 oz, measured out to the half ounce.
+    expect(mail.text).toContain('Sodium bicarbonate (KH buffer) — 9 oz')
+    expect(mail.text).not.toMatch(/\b250 g\b|°C/)
     expect(mail.text).toContain('Lilies trimmed back.')
     expect(mail.text).toMatch(/GFCI\/RCD/)
     expect(mail.html).toMatch(/<img src="(cid:photo-|data:image\/jpeg)/)
