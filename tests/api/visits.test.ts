@@ -66,6 +66,8 @@ describe('running a visit', () => {
     // Headed by the catalogue's labels in the company's units (a US company).
     expect(lines[0]).toMatch(/^Taken at,Entered by,Water temperature \(°F\),pH,/)
     expect(lines).toHaveLength(3)
+    // Values in the same units: 24 °C = 24 × 1.8 + 32 = 75.2 °F (exact definition).
+    expect(lines.slice(1).map(l => l.split(',')[2])).toEqual(['75.2', '75.2'])
   })
 
   it('checks photos from their bytes, strips EXIF, stores a thumbnail; bad uploads are refused and nothing is kept', async () => {
