@@ -8,6 +8,8 @@ export const demoCompany = {
   taxRateBasisPoints: 725,
   unitSystem: 'us' as const,
   timeZone: 'America/Chicago',
+  /** Invented (555 numbers are reserved for fiction). */
+  phone: '(555) 014-2290',
 }
 
 export const demoStaff = [

@@ -1,9 +1,10 @@
 // Invented water tests for the demo's finished visits: seasonal temperatures, a gentle pH and KH
 // drift, and a few out-of-range episodes (an ammonia spike, low KH, a nitrite bloom, low oxygen).
 import { and, asc, eq, inArray } from 'drizzle-orm'
-import { contractFeatures, readings, visits, waterFeatures } from '../../server/db/schema'
+import { companies, contractFeatures, sites, visits, waterFeatures, type readings } from '../../server/db/schema'
+import { evaluateAtSite, insertReadingsOnce, readingRow } from '../../server/services/readings'
 import type { Tx } from '../../server/utils/db'
-import { DEFAULT_PROFILES, evaluateReading, mergeRanges, profileKeyForKind } from '../../shared/utils/water-chemistry'
+import { DEFAULT_PROFILES, mergeRanges, profileKeyForKind } from '../../shared/utils/water-chemistry'
 
 function rand(seed: string) {
   let h = 2166136261
@@ -23,8 +24,9 @@ export async function seedReadings(tx: Tx, companyId: string, idFor: IdFor, cont
   if (!contractIds.length) return 0
   const done = await tx.select({ id: visits.id, contractId: visits.contractId, siteId: visits.siteId, startedAt: visits.startedAt, scheduledOn: visits.scheduledOn })
     .from(visits).where(and(eq(visits.companyId, companyId), eq(visits.status, 'done'), inArray(visits.contractId, contractIds))).orderBy(asc(visits.scheduledOn))
-  const features = await tx.select({ contractId: contractFeatures.contractId, id: waterFeatures.id, siteId: waterFeatures.siteId, kind: waterFeatures.kind, fish: waterFeatures.fish })
-    .from(contractFeatures).innerJoin(waterFeatures, eq(waterFeatures.id, contractFeatures.featureId)).where(inArray(contractFeatures.contractId, contractIds))
+  const features = await tx.select({ contractId: contractFeatures.contractId, id: waterFeatures.id, siteId: waterFeatures.siteId, kind: waterFeatures.kind, fish: waterFeatures.fish, altitudeM: sites.altitudeM })
+    .from(contractFeatures).innerJoin(waterFeatures, eq(waterFeatures.id, contractFeatures.featureId)).innerJoin(sites, eq(sites.id, waterFeatures.siteId)).where(inArray(contractFeatures.contractId, contractIds))
+  const [company] = await tx.select({ unitSystem: companies.unitSystem }).from(companies).where(eq(companies.id, companyId)).limit(1)
   const rows: Array<typeof readings.$inferInsert> = []
   for (const v of done) {
     for (const f of features.filter(x => x.contractId === v.contractId && x.siteId === v.siteId)) {
@@ -45,17 +47,12 @@ export async function seedReadings(tx: Tx, companyId: string, idFor: IdFor, cont
         ammoniaBasis: 'N' as const,
       }
       const ranges = mergeRanges(DEFAULT_PROFILES[profileKeyForKind(f.kind)].ranges, {})
-      const e = evaluateReading(reading, ranges)
-      rows.push({
-        id: idFor(`reading-${v.id}-${f.id}`), companyId, featureId: f.id, visitId: v.id, source: 'technician',
-        takenAt: v.startedAt ?? new Date(`${v.scheduledOn}T15:00:00Z`), ...reading,
-        nh3MgL: e.computed.nh3MgL, doSaturationPct: e.computed.doSaturationPct, overall: e.overall, evaluation: e.parameters,
-      })
+      const e = evaluateAtSite(reading, { ranges, altitudeM: f.altitudeM, unitSystem: company!.unitSystem })
+      rows.push(readingRow({
+        id: idFor(`reading-${v.id}-${f.id}`), companyId, featureId: f.id, visitId: v.id, source: 'technician', enteredBy: null,
+        takenAt: v.startedAt ?? new Date(`${v.scheduledOn}T15:00:00Z`),
+      }, reading, e))
     }
   }
-  let added = 0
-  for (let i = 0; i < rows.length; i += 500) {
-    added += (await tx.insert(readings).values(rows.slice(i, i + 500)).onConflictDoNothing().returning({ id: readings.id })).length
-  }
-  return added
+  return insertReadingsOnce(tx, rows)
 }

@@ -1,14 +1,17 @@
 import { and, asc, count, desc, eq, gt, inArray, isNull, lt, ne, sql, type SQL } from 'drizzle-orm'
 import { addDays, localToday } from '../../shared/utils/recurrence'
-import { dailyWaterLossMm, topUpLitresToMm, waterLossStatus } from '../../shared/utils/water-chemistry'
-import { alerts, companies, contracts, customerContacts, customers, doses, readings, taskWatermarks, users, visits, waterFeatures } from '../db/schema'
+import { dailyWaterLossMm, EVAPORATION_ALLOWANCE_MM_PER_DAY, topUpLitresToMm, waterLossStatus } from '../../shared/utils/water-chemistry'
+import { formatNumber, formatQuantity, toDisplay, unitFor, type UnitSystem } from '../../shared/utils/water/format'
+import { formatParameter } from '../../shared/utils/water/parameters'
+import { alerts, companies, contracts, customers, doses, readings, taskWatermarks, visits, waterFeatures } from '../db/schema'
 import type { SessionUser } from '../utils/auth'
-import { escapeHtml } from '../utils/html'
 import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { recordAudit } from './audit'
+import { notifyFeatureAlerts } from './alert-mail'
 import { enqueueMail } from './mail'
 import { ownerEmails } from './recipients'
+import { escapeHtml } from '../utils/html'
 
 const WATERMARK = 'alerts:scan'
 /** Rules of thumb (common practice, no source) unless marked. */
@@ -26,12 +29,16 @@ export const ALERT_RULES = {
 type Severity = 'watch' | 'act'
 interface Finding { companyId: string, subjectKey: string, condition: string, severity: Severity, title: string, detail?: string, value?: number | null, featureId?: string | null, visitId?: string | null, contractId?: string | null }
 
-/** Opens or updates the one open alert for a subject; returns it when it is new or just became `act`. */
+/**
+ * Opens or updates the one open alert for a subject; returns it when it is new or just became
+ * `act`. The severity follows the latest finding, so the title (the finding's words) and the
+ * severity always agree: a watch-level result never sits under an "act today" alert.
+ */
 async function raise(tx: Tx, f: Finding, now: Date) {
   const [existing] = await tx.select().from(alerts).where(and(eq(alerts.companyId, f.companyId), eq(alerts.subjectKey, f.subjectKey), ne(alerts.status, 'resolved'))).limit(1)
   if (existing) {
     const escalated = existing.severity === 'watch' && f.severity === 'act'
-    await tx.update(alerts).set({ severity: escalated ? 'act' : existing.severity, title: f.title, detail: f.detail ?? '', value: f.value ?? null, lastSeenAt: now }).where(eq(alerts.id, existing.id))
+    await tx.update(alerts).set({ severity: f.severity, title: f.title, detail: f.detail ?? '', value: f.value ?? null, lastSeenAt: now }).where(eq(alerts.id, existing.id))
     return escalated ? { ...existing, severity: 'act' as const, title: f.title } : null
   }
   const [row] = await tx.insert(alerts).values({ ...f, detail: f.detail ?? '', value: f.value ?? null, firstSeenAt: now, lastSeenAt: now }).returning()
@@ -58,6 +65,8 @@ export async function runAlertScan(opts: { now?: Date } = {}) {
     await tx.insert(taskWatermarks).values({ name: WATERMARK, lastSeq: 0 }).onConflictDoNothing()
     const [mark] = await tx.select().from(taskWatermarks).where(eq(taskWatermarks.name, WATERMARK)).for('update')
     const fresh = await tx.select().from(readings).where(gt(readings.seq, mark!.lastSeq)).orderBy(asc(readings.seq)).limit(50_000)
+    // Titles are sentences people read: in each company's units.
+    const unitsOf = new Map((await tx.select({ id: companies.id, unitSystem: companies.unitSystem }).from(companies)).map(c => [c.id, c.unitSystem as UnitSystem]))
     const notify: Array<typeof alerts.$inferSelect> = []
     const keep = (a: typeof alerts.$inferSelect | null) => { if (a && a.severity === 'act') notify.push(a) }
 
@@ -90,6 +99,7 @@ export async function runAlertScan(opts: { now?: Date } = {}) {
       const prev = previousOf.get(r.id)
       if (!prev) continue
       const f = r.featureId
+      const units = unitsOf.get(r.companyId) ?? 'metric'
       if (r.pH != null && prev.pH != null) {
         const drop = prev.pH - r.pH
         if (drop > ALERT_RULES.pHDropWatch) keep(await raise(tx, { companyId: r.companyId, subjectKey: `trend:${f}:ph_drop`, condition: 'trend.ph_drop', severity: drop > ALERT_RULES.pHDropAct ? 'act' : 'watch', title: `pH fell by ${drop.toFixed(1)} since the last test (${prev.pH} → ${r.pH}): check KH and what went in`, value: drop, featureId: f, visitId: r.visitId }, now))
@@ -97,12 +107,14 @@ export async function runAlertScan(opts: { now?: Date } = {}) {
       }
       const khFloor = r.evaluation.find(e => e.parameter === 'khMgL')
       if (r.khMgL != null && prev.khMgL != null) {
-        if (r.khMgL < prev.khMgL && khFloor && khFloor.status !== 'ok') keep(await raise(tx, { companyId: r.companyId, subjectKey: `trend:${f}:kh_falling`, condition: 'trend.kh_falling', severity: khFloor.status, title: `KH is low and falling (${prev.khMgL} → ${r.khMgL} mg/L): pH may crash`, value: r.khMgL, featureId: f, visitId: r.visitId }, now))
+        if (r.khMgL < prev.khMgL && khFloor && khFloor.status !== 'ok') keep(await raise(tx, { companyId: r.companyId, subjectKey: `trend:${f}:kh_falling`, condition: 'trend.kh_falling', severity: khFloor.status, title: `KH is low and falling (${formatParameter('khMgL', prev.khMgL, units, { bare: true })} → ${formatParameter('khMgL', r.khMgL, units)}): pH may crash`, value: r.khMgL, featureId: f, visitId: r.visitId }, now))
         else if (isLatest) await clear(tx, r.companyId, `trend:${f}:kh_falling`, now, 'KH no longer low and falling')
       }
       if (r.temperatureC != null && prev.temperatureC != null && r.takenAt.getTime() - prev.takenAt.getTime() <= ALERT_RULES.temperatureSwingHours * 3600_000) {
         const swing = Math.abs(r.temperatureC - prev.temperatureC)
-        if (swing > ALERT_RULES.temperatureSwingC) keep(await raise(tx, { companyId: r.companyId, subjectKey: `trend:${f}:temperature_swing`, condition: 'trend.temperature_swing', severity: 'watch', title: `Water temperature changed ${swing.toFixed(1)} °C within ${Math.round((r.takenAt.getTime() - prev.takenAt.getTime()) / 3600_000)} h: stress for fish`, value: swing, featureId: f }, now))
+        // A change of temperature in the reader's degrees: the difference of the two shown values.
+        const shownSwing = Math.abs(toDisplay('temperature', r.temperatureC, units) - toDisplay('temperature', prev.temperatureC, units))
+        if (swing > ALERT_RULES.temperatureSwingC) keep(await raise(tx, { companyId: r.companyId, subjectKey: `trend:${f}:temperature_swing`, condition: 'trend.temperature_swing', severity: 'watch', title: `Water temperature changed ${formatNumber(shownSwing, 1)} ${unitFor('temperature', units)} within ${Math.round((r.takenAt.getTime() - prev.takenAt.getTime()) / 3600_000)} h: stress for fish`, value: swing, featureId: f }, now))
         else if (isLatest) await clear(tx, r.companyId, `trend:${f}:temperature_swing`, now, 'Temperature steady')
       }
       // Water loss from the level readings, adding back top-ups between them.
@@ -112,7 +124,7 @@ export async function runAlertScan(opts: { now?: Date } = {}) {
         const addedMm = topUps.reduce((s, t) => s + topUpLitresToMm(t.amount, feature!.area), 0)
         const perDay = dailyWaterLossMm([{ at: prev.takenAt, levelMm: prev.waterLevelMm, addedMm }, { at: r.takenAt, levelMm: r.waterLevelMm }])
         const status = perDay == null ? 'ok' : waterLossStatus(perDay)
-        if (status !== 'ok') keep(await raise(tx, { companyId: r.companyId, subjectKey: `water_loss:${f}`, condition: 'water_loss', severity: status, title: `Losing ${perDay!.toFixed(1)} mm of water a day, more than evaporation (about 3.6 mm): look for a leak`, value: perDay, featureId: f }, now))
+        if (status !== 'ok') keep(await raise(tx, { companyId: r.companyId, subjectKey: `water_loss:${f}`, condition: 'water_loss', severity: status, title: `Losing ${formatQuantity('level', perDay!, units)} of water a day, more than evaporation (about ${formatQuantity('level', EVAPORATION_ALLOWANCE_MM_PER_DAY, units)}): look for a leak`, value: perDay, featureId: f }, now))
         else await clear(tx, r.companyId, `water_loss:${f}`, now, 'Water loss within the evaporation allowance')
       }
     }
@@ -139,36 +151,23 @@ export async function runAlertScan(opts: { now?: Date } = {}) {
       for (const k of ending) keep(await raise(tx, { companyId: c.id, subjectKey: `contract:${k.id}:renewal`, condition: 'contract.renewal', severity: 'watch', title: `${k.customerName}'s contract ends ${k.termEnd} and does not renew by itself: ask them`, contractId: k.id }, now))
     }
 
-    // E-mail for `act`: the owner(s) and the feature's technician; the customer when their contacts want alerts.
-    // Only what is still open at the end of the run (an old episode that a later reading closed is history, not news).
-    const stillOpen = notify.length ? new Set((await tx.select({ id: alerts.id }).from(alerts).where(and(inArray(alerts.id, notify.map(a => a.id)), ne(alerts.status, 'resolved')))).map(a => a.id)) : new Set<string>()
-    for (const a of notify) if (stillOpen.has(a.id)) await notifyAct(tx, a)
+    // E-mail for `act`: one message per person per feature per scan, naming every result that needs
+    // action. Only what is still open and still `act` at the end of the run (an old episode that a
+    // later reading closed or calmed is history, not news).
+    const current = notify.length
+      ? await tx.select().from(alerts).where(and(inArray(alerts.id, [...new Set(notify.map(a => a.id))]), ne(alerts.status, 'resolved'), eq(alerts.severity, 'act'))).orderBy(asc(alerts.firstSeenAt), asc(alerts.subjectKey))
+      : []
+    const byFeature = new Map<string, typeof current>()
+    for (const a of current) (byFeature.get(a.featureId ?? a.id) ?? byFeature.set(a.featureId ?? a.id, []).get(a.featureId ?? a.id)!).push(a)
+    for (const group of byFeature.values()) await notifyFeatureAlerts(tx, group)
     await queueWatchDigests(tx, now)
 
     const maxSeq = fresh.at(-1)?.seq ?? mark!.lastSeq
     await tx.update(taskWatermarks).set({ lastSeq: maxSeq, lastRunAt: now }).where(eq(taskWatermarks.name, WATERMARK))
-    return { skipped: false as const, readingsScanned: fresh.length, actNotified: stillOpen.size, watermark: maxSeq }
+    return { skipped: false as const, readingsScanned: fresh.length, actNotified: current.length, watermark: maxSeq }
   })
 }
 
-
-async function notifyAct(tx: Tx, a: typeof alerts.$inferSelect) {
-  const owners = await ownerEmails(tx, a.companyId)
-  const techs = a.featureId
-    ? await tx.select({ email: users.email }).from(visits).innerJoin(waterFeatures, eq(waterFeatures.siteId, visits.siteId)).innerJoin(users, eq(users.id, visits.technicianId))
-      .where(and(eq(waterFeatures.id, a.featureId), sql`${visits.technicianId} is not null`)).orderBy(desc(visits.scheduledOn)).limit(1)
-    : []
-  const staff = [...new Set([...owners, ...techs.map(u => u.email)])]
-  const text = `${a.title}\n\nOpen alerts: /alerts\n\nFish are at risk when ammonia or nitrite climb or oxygen falls: act today. Follow product labels; power near water only on a GFCI/RCD protected circuit.`
-  await enqueueMail(tx, { companyId: a.companyId, dedupeKey: `alert:${a.id}:act`, to: staff, subject: `Act today: ${a.title.slice(0, 90)}`, text, html: `<p><strong>${escapeHtml(a.title)}</strong></p><p>Open alerts in Rillbook: /alerts</p><p style="font-size:12px">Follow product labels; power near water only on a GFCI/RCD protected circuit.</p>` })
-  if (a.featureId) {
-    const contacts = await tx.select({ email: customerContacts.email }).from(waterFeatures).innerJoin(customerContacts, eq(customerContacts.customerId, waterFeatures.customerId))
-      .where(and(eq(waterFeatures.id, a.featureId), eq(customerContacts.getsAlerts, true)))
-    const to = [...new Set(contacts.flatMap(c => (c.email ? [c.email] : [])))]
-    await enqueueMail(tx, { companyId: a.companyId, dedupeKey: `alert:${a.id}:customer`, to, subject: 'Your pond needs attention today', text: `${a.title}\n\nWe will be in touch today. Until then: feed lightly or not at all, keep the pump and aerator running, and call us if fish gasp at the surface.`, html: `<p>${escapeHtml(a.title)}</p><p>We will be in touch today. Until then: feed lightly or not at all, keep the pump and aerator running, and call us if fish gasp at the surface.</p>` })
-  }
-  await tx.update(alerts).set({ notifiedAt: new Date() }).where(eq(alerts.id, a.id))
-}
 
 /** One digest a day per company of its open `watch` alerts, to the owners. */
 async function queueWatchDigests(tx: Tx, now: Date) {
@@ -199,7 +198,7 @@ export async function listAlerts(actor: SessionUser, q: { page: number, pageSize
     db.select({
       id: alerts.id, condition: alerts.condition, severity: alerts.severity, status: alerts.status, title: alerts.title, value: alerts.value,
       featureId: alerts.featureId, featureName: waterFeatures.name, customerName: customers.name, visitId: alerts.visitId, contractId: alerts.contractId,
-      firstSeenAt: alerts.firstSeenAt, lastSeenAt: alerts.lastSeenAt, closedAt: alerts.closedAt, note: alerts.note,
+      firstSeenAt: alerts.firstSeenAt, lastSeenAt: alerts.lastSeenAt, closedAt: alerts.closedAt, note: alerts.note, retestVisitId: alerts.retestVisitId,
     }).from(alerts).leftJoin(waterFeatures, eq(waterFeatures.id, alerts.featureId)).leftJoin(customers, eq(customers.id, waterFeatures.customerId))
       .where(cond).orderBy(desc(sql`${alerts.severity} = 'act'`), desc(alerts.lastSeenAt)).limit(q.pageSize).offset((q.page - 1) * q.pageSize),
     db.select({ n: count() }).from(alerts).where(cond),

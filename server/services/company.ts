@@ -13,7 +13,23 @@ const columns = {
   taxRateBasisPoints: companies.taxRateBasisPoints, unitSystem: companies.unitSystem, timeZone: companies.timeZone,
   workingDays: companies.workingDays, dayStartTime: companies.dayStartTime,
   baseLatitude: companies.baseLatitude, baseLongitude: companies.baseLongitude,
-  address: companies.address, billingEmail: companies.billingEmail, paymentTermsDays: companies.paymentTermsDays,
+  address: companies.address, phone: companies.phone, billingEmail: companies.billingEmail, paymentTermsDays: companies.paymentTermsDays,
+}
+
+/**
+ * What a sentence for this person needs from the company: the units they read in (their own
+ * choice, else the company's), the company's own units, and the number to call (empty: none).
+ */
+export async function readerContext(actor: Pick<SessionUser, 'id' | 'companyId'>) {
+  const [row] = await useDb().select({ companyUnitSystem: companies.unitSystem, own: users.unitSystem, phone: companies.phone, companyName: companies.name })
+    .from(companies).leftJoin(users, and(eq(users.id, actor.id), eq(users.companyId, companies.id))).where(eq(companies.id, actor.companyId)).limit(1)
+  if (!row) throw httpError(404, 'No such company')
+  return { unitSystem: row.own ?? row.companyUnitSystem, companyUnitSystem: row.companyUnitSystem, phone: row.phone, companyName: row.companyName }
+}
+
+/** The units a person reads in, for a schema's messages (a limit quoted in the unit they typed). */
+export async function unitSystemOf(actor: Pick<SessionUser, 'id' | 'companyId'>) {
+  return (await readerContext(actor)).unitSystem
 }
 
 /** The company's settings; `unitSystem` is the one this sign-in reads in (its own choice, else the company's). */

@@ -1,11 +1,43 @@
 import { and, asc, count, desc, eq, gte, lte, type SQL } from 'drizzle-orm'
 import { doses, photos, readings, visits } from '../db/schema'
+import type { UnitSystem } from '../../shared/utils/water/format'
+import { PARAMETER_LIST, parameterDigits, parameterHeading, parameterToDisplay } from '../../shared/utils/water/parameters'
 import type { SessionUser } from '../utils/auth'
 import { useDb } from '../utils/db'
 import { getFeature } from './features'
 
 export const READING_SORTS = ['takenAt', 'pH', 'temperatureC', 'totalAmmoniaMgL', 'nh3MgL', 'nitriteMgL', 'khMgL', 'dissolvedOxygenMgL'] as const
-export const READING_CSV_COLUMNS = ['takenAt', 'source', 'temperatureC', 'pH', 'totalAmmoniaMgL', 'ammoniaBasis', 'nh3MgL', 'nitriteMgL', 'nitrateMgL', 'khMgL', 'ghMgL', 'dissolvedOxygenMgL', 'doSaturationPct', 'saltGL', 'chlorineMgL', 'phosphateMgL', 'waterLevelMm', 'overall'] as const
+type ReadingRecord = typeof readings.$inferSelect
+interface CsvColumn { heading: string, value: (r: ReadingRecord) => unknown }
+
+/**
+ * The columns of a readings CSV in `system`'s units: the catalogue's parameters, each headed by its
+ * label and unit ("Water temperature (°F)") and rounded one digit finer than on screen.
+ */
+export function readingCsvColumns(system: UnitSystem): CsvColumn[] {
+  const parameters = PARAMETER_LIST.flatMap((p): CsvColumn[] => {
+    const col: CsvColumn = {
+      heading: parameterHeading(p.key, system),
+      value: (r) => {
+        const v = r[p.key]
+        return v == null ? null : Number(parameterToDisplay(p.key, v, system).toFixed(parameterDigits(p.key, system) + 1))
+      },
+    }
+    return p.key === 'totalAmmoniaMgL' ? [col, { heading: 'Ammonia kit reports as', value: r => r.ammoniaBasis }] : [col]
+  })
+  return [
+    { heading: 'Taken at', value: r => r.takenAt },
+    { heading: 'Entered by', value: r => r.source },
+    ...parameters,
+    { heading: 'Status', value: r => r.overall },
+  ]
+}
+
+/** A feature's readings as CSV in the reader's units. */
+export function readingsCsv(rows: ReadingRecord[], system: UnitSystem) {
+  const columns = readingCsvColumns(system)
+  return toCsv(columns.map(c => c.heading), rows.map(r => Object.fromEntries(columns.map(c => [c.heading, c.value(r)]))))
+}
 
 /** A feature's readings (paged and sorted, or all in a date range for CSV); tenancy through getFeature. */
 export async function featureReadings(actor: SessionUser, featureId: string, q: { page: number, pageSize: number, sort: (typeof READING_SORTS)[number], dir: 'asc' | 'desc', from?: string, to?: string }, all = false) {

@@ -1,15 +1,18 @@
-import { and, asc, count, desc, eq, gte, inArray, isNull, sql } from 'drizzle-orm'
+import { and, asc, count, desc, eq, getTableColumns, gte, inArray, isNull, lte, sql } from 'drizzle-orm'
 import type { CustomerReadingInput, PreferencesInput } from '../../shared/schemas/portal'
-import type { Parameter, WaterReading } from '../../shared/types/water'
+import type { Parameter, ReadingEvaluation } from '../../shared/types/water'
 import { adviceFor } from '../../shared/utils/advice'
 import { addDays, localToday } from '../../shared/utils/recurrence'
-import { evaluateReading, pressureAtAltitudeKPa, WaterInputError } from '../../shared/utils/water-chemistry'
+import type { UnitSystem } from '../../shared/utils/water/format'
+import { PARAMETER_LIST } from '../../shared/utils/water/parameters'
 import { companies, customerContacts, doses, outbox, photos, products, readings, sites, users, visits, waterFeatures } from '../db/schema'
 import { ownCustomerId, type SessionUser } from '../utils/auth'
 import { useDb } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { recordAudit } from './audit'
+import { readerContext } from './company'
 import { rangesFor } from './features'
+import { evaluateAtSite, measuredValues, readingRow, upsertReading } from './readings'
 
 /** The customer this sign-in belongs to (the portal is for customers only). */
 function customerOf(actor: SessionUser) {
@@ -18,7 +21,13 @@ function customerOf(actor: SessionUser) {
   return own
 }
 
-const VALUE_COLUMNS = ['temperatureC', 'pH', 'totalAmmoniaMgL', 'nh3MgL', 'nitriteMgL', 'nitrateMgL', 'khMgL', 'ghMgL', 'dissolvedOxygenMgL', 'doSaturationPct', 'saltGL', 'chlorineMgL', 'phosphateMgL'] as const satisfies readonly Parameter[]
+/** What customer advice is written with: the reader's units, the company's number, the computed values. */
+interface AdviceContext { unitSystem: UnitSystem, phone: string, computed?: ReadingEvaluation['computed'] }
+/**
+ * The customer's advice. The advice engine takes the context as a fourth argument (its units, and
+ * the number in "Call us today on …"); an engine that does not yet read it ignores it.
+ */
+const advise = adviceFor as (...args: [...Parameters<typeof adviceFor>, AdviceContext]) => ReturnType<typeof adviceFor>
 /** A UV bulb is due about yearly (common practice, no source; the same rule as the alert scan). */
 const UV_BULB_DAYS = 365
 
@@ -36,20 +45,19 @@ export async function portalFeatures(actor: SessionUser) {
   if (!features.length) return { today, features: [] }
   const ids = features.map(x => x.f.id)
   // The two latest tests of each feature, in one query.
-  const latest = await db.execute<{ feature_id: string, id: string, taken_at: Date, source: 'technician' | 'customer', evaluation: unknown, overall: string, rn: number } & Record<string, unknown>>(sql`
-    select * from (
-      select r.*, row_number() over (partition by r.feature_id order by r.taken_at desc) as rn
-      from ${readings} r where r.feature_id in (${sql.join(ids.map(id => sql`${id}`), sql`, `)})
-    ) x where rn <= 2`)
+  const ranked = db.select({ ...getTableColumns(readings), rn: sql<number>`row_number() over (partition by ${readings.featureId} order by ${readings.takenAt} desc)`.as('rn') })
+    .from(readings).where(inArray(readings.featureId, ids)).as('ranked')
+  const latest = await db.select().from(ranked).where(lte(ranked.rn, 2))
+  const reader = await readerContext(actor)
   const next = await db.select({ siteId: visits.siteId, on: sql<string>`min(${visits.scheduledOn})` }).from(visits)
     .where(and(eq(visits.customerId, customerId), inArray(visits.status, ['scheduled', 'in_progress']), gte(visits.scheduledOn, today))).groupBy(visits.siteId)
   const nextBySite = new Map(next.map(n => [n.siteId, n.on]))
   return {
     today,
     features: await Promise.all(features.map(async ({ f, siteName }) => {
-      const mine = latest.rows.filter(r => r.feature_id === f.id).sort((a, b) => Number(a.rn) - Number(b.rn))
+      const mine = latest.filter(r => r.featureId === f.id).sort((a, b) => Number(a.rn) - Number(b.rn))
       const [last, before] = mine
-      const previous = Object.fromEntries(VALUE_COLUMNS.map(k => [k, before ? (before[snake(k)] as number | null) : null]))
+      const previous: Partial<Record<Parameter, number | null>> = Object.fromEntries(PARAMETER_LIST.map(p => [p.key, before?.[p.key] ?? null]))
       const nextVisit = nextBySite.get(f.siteId) ?? null
       const evaluation = (last?.evaluation ?? []) as Parameters<typeof adviceFor>[0]
       const bulb = f.equipment.uvClarifier?.bulbInstalledOn ?? null
@@ -63,14 +71,13 @@ export async function portalFeatures(actor: SessionUser) {
       return {
         id: f.id, name: f.name, kind: f.kind, siteId: f.siteId, siteName, volumeL: f.measuredVolumeL ?? f.computedVolumeL, fish: f.fish,
         equipment: f.equipment, ranges, nextVisit, due,
-        latest: last ? { id: last.id, takenAt: last.taken_at, source: last.source, evaluation } : null,
-        advice: adviceFor(evaluation, previous, nextVisit),
+        latest: last ? { id: last.id, takenAt: last.takenAt, source: last.source, evaluation } : null,
+        advice: advise(evaluation, previous, nextVisit, { unitSystem: reader.unitSystem, phone: reader.phone, computed: last ? { nh3MgL: last.nh3MgL, nh3AsNMgL: null, nh3Fraction: null, doSaturationMgL: null, doSaturationPct: last.doSaturationPct } : undefined }),
+        phone: reader.phone,
       }
     })),
   }
 }
-
-const snake = (k: string) => k.replace(/[A-Z]/g, m => `_${m.toLowerCase()}`).replace('p_h', 'ph')
 
 /** The company's treatments a customer may dose between visits, named by what they are, with their label rates. */
 export async function portalTreatments(actor: SessionUser) {
@@ -94,25 +101,19 @@ export async function addCustomerReading(actor: SessionUser, input: CustomerRead
   if (takenAt.getTime() < Date.now() - 14 * 86_400_000) throw httpError(400, 'Invalid body: takenAt — enter tests from the last two weeks', { fields: { takenAt: 'Within the last two weeks' } })
   const [clash] = await db.select({ featureId: readings.featureId, enteredBy: readings.enteredBy }).from(readings).where(eq(readings.id, input.id)).limit(1)
   if (clash && (clash.featureId !== input.featureId || clash.enteredBy !== actor.id)) throw httpError(409, 'A reading with this id already exists')
-  const { id, featureId, takenAt: _t, ...values } = input
+  const values = measuredValues(input)
   const { ranges } = await rangesFor(actor.companyId, row.f)
-  let evaluation
-  try {
-    evaluation = evaluateReading(values as WaterReading, ranges, { pressureKPa: row.altitudeM != null ? pressureAtAltitudeKPa(row.altitudeM) : 101.325 })
-  }
-  catch (err) {
-    if (err instanceof WaterInputError) throw httpError(400, `Invalid body: ${err.field} — ${err.message}`, { fields: { [err.field]: err.message } })
-    throw err
-  }
+  const reader = await readerContext(actor)
+  // Stored reasons are in the company's units, like a technician's; the advice is in the reader's.
+  const evaluation = evaluateAtSite(values, { ranges, altitudeM: row.altitudeM, unitSystem: reader.companyUnitSystem })
   await db.transaction(async (tx) => {
-    const data = {
-      ...values, companyId: actor.companyId, featureId, visitId: null, takenAt, enteredBy: actor.id, source: 'customer' as const,
-      nh3MgL: evaluation.computed.nh3MgL, doSaturationPct: evaluation.computed.doSaturationPct, overall: evaluation.overall, evaluation: evaluation.parameters,
-    }
-    await tx.insert(readings).values({ id, ...data }).onConflictDoUpdate({ target: readings.id, set: data })
-    await recordAudit(tx, { action: 'reading.customer_entered', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'feature', subjectId: featureId, ip, detail: { readingId: id, overall: evaluation.overall } })
+    await upsertReading(tx, readingRow({ id: input.id, companyId: actor.companyId, featureId: input.featureId, visitId: null, takenAt, enteredBy: actor.id, source: 'customer' }, values, evaluation))
+    await recordAudit(tx, { action: 'reading.customer_entered', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'feature', subjectId: input.featureId, ip, detail: { readingId: input.id, overall: evaluation.overall } })
   })
-  return { id, overall: evaluation.overall, evaluation: evaluation.parameters, advice: adviceFor(evaluation.parameters, {}, null) }
+  return {
+    id: input.id, overall: evaluation.overall, evaluation: evaluation.parameters,
+    advice: advise(evaluation.parameters, {}, null, { unitSystem: reader.unitSystem, phone: reader.phone, computed: evaluation.computed }), phone: reader.phone,
+  }
 }
 
 /** The customer's finished visits, newest first, paged. */

@@ -13,6 +13,7 @@ import { publicAppUrl } from '../utils/payments'
 import { recordAudit } from './audit'
 import { enqueueMail } from './mail'
 import { storePhoto } from './photos'
+import { deepestAtSite, withSafety } from './visit-safety'
 import { contactEmails, ownerEmails } from './recipients'
 
 function scope(actor: SessionUser): SQL[] {
@@ -135,12 +136,13 @@ export async function scheduleRequest(actor: SessionUser, id: string, input: Req
       const [t] = await tx.select({ id: users.id }).from(users).where(and(eq(users.id, input.technicianId), eq(users.companyId, actor.companyId), inArray(users.role, ['technician', 'owner']), eq(users.active, true))).limit(1)
       if (!t) throw httpError(400, 'Invalid body: technicianId — no such technician', { fields: { technicianId: 'No such technician' } })
     }
-    const [company] = await tx.select({ timeZone: companies.timeZone, name: companies.name }).from(companies).where(eq(companies.id, actor.companyId)).limit(1)
+    const [company] = await tx.select({ timeZone: companies.timeZone, name: companies.name, baseLatitude: companies.baseLatitude }).from(companies).where(eq(companies.id, actor.companyId)).limit(1)
     if (input.date < localToday(company!.timeZone)) throw httpError(400, 'Invalid body: date — choose today or a later day', { fields: { date: 'Today or later' } })
     const [v] = await tx.insert(visits).values({
       companyId: actor.companyId, customerId: r.customerId, siteId: r.siteId, visitType: input.visitType, scheduledOn: input.date,
       startsAt: localTimeToInstant(input.date, input.startTime, company!.timeZone), durationMinutes: input.durationMinutes,
-      technicianId: input.technicianId ?? null, movedManually: true, checklist: [{ label: `${REQUEST_KIND_LABELS[r.kind]}: ${r.description.slice(0, 150)}`, state: null }],
+      technicianId: input.technicianId ?? null, movedManually: true,
+      checklist: withSafety([`${REQUEST_KIND_LABELS[r.kind]}: ${r.description.slice(0, 150)}`], { visitType: input.visitType, date: input.date, deepestM: await deepestAtSite(tx, r.siteId), latitude: company!.baseLatitude, treatment: r.kind === 'fish_problem' }),
       internalNotes: `Booked from the customer's request of ${r.createdAt.toISOString().slice(0, 10)}.`,
     }).returning({ id: visits.id })
     await tx.update(serviceRequests).set({ status: 'scheduled', visitId: v!.id, reply: input.reply, handledBy: actor.id, handledAt: new Date() }).where(eq(serviceRequests.id, id))

@@ -2,6 +2,7 @@ import { and, asc, eq, gte, inArray, sql } from 'drizzle-orm'
 import { localTimeToInstant, localToday, planVisitDates, reconcileVisits, type PlannedVisit } from '../../shared/utils/recurrence'
 import { closedDays, companies, contractFeatures, contracts, planVisitTemplates, visits, waterFeatures } from '../db/schema'
 import type { Tx } from '../utils/db'
+import { shapeDepthM, withSafety } from './visit-safety'
 
 /** The clock generation uses; tests and the demo seed pass their own. */
 export interface GenerationClock { now?: Date }
@@ -19,9 +20,13 @@ export async function regenerateContractVisits(tx: Tx, contractId: string, clock
   // One connection inside a transaction: run the reads one after another.
   const templates = await tx.select().from(planVisitTemplates).where(eq(planVisitTemplates.planId, contract.planId)).orderBy(asc(planVisitTemplates.position))
   const closed = await tx.select({ day: closedDays.day }).from(closedDays).where(and(eq(closedDays.companyId, contract.companyId), gte(closedDays.day, contract.termStart)))
-  const featureSites = await tx.selectDistinct({ siteId: waterFeatures.siteId }).from(contractFeatures)
+  const contractShapes = await tx.select({ siteId: waterFeatures.siteId, shape: waterFeatures.shape }).from(contractFeatures)
     .innerJoin(waterFeatures, eq(waterFeatures.id, contractFeatures.featureId))
     .where(eq(contractFeatures.contractId, contractId))
+  // The deepest water at each site decides its safety items.
+  const deepestAt = new Map<string, number>()
+  for (const f of contractShapes) deepestAt.set(f.siteId, Math.max(deepestAt.get(f.siteId) ?? 0, shapeDepthM(f.shape)))
+  const featureSites = [...deepestAt.keys()].map(siteId => ({ siteId }))
   const existing = await tx.select({
     id: visits.id, generationKey: visits.generationKey, status: visits.status, movedManually: visits.movedManually,
     scheduledOn: visits.scheduledOn, statusReason: visits.statusReason,
@@ -42,7 +47,8 @@ export async function regenerateContractVisits(tx: Tx, contractId: string, clock
       return {
         companyId: contract.companyId, contractId, templateId: t.id, customerId: contract.customerId, siteId,
         visitType: t.visitType, scheduledOn: p.date, startsAt: startOf(p.date), durationMinutes: t.durationMinutes,
-        generationKey: p.key, checklist: t.checklist.map(c => ({ label: c.label, state: null })),
+        generationKey: p.key,
+        checklist: withSafety(t.checklist.map(c => c.label), { visitType: t.visitType, date: p.date, deepestM: deepestAt.get(siteId) ?? null, latitude: company!.baseLatitude }),
       }
     })).onConflictDoNothing()
   }

@@ -1,13 +1,12 @@
 import { and, asc, eq, inArray, notInArray, sql } from 'drizzle-orm'
 import type { VisitRecordInput } from '../../shared/schemas/visit-record'
-import type { WaterReading } from '../../shared/types/water'
-import { evaluateReading, pressureAtAltitudeKPa, WaterInputError } from '../../shared/utils/water-chemistry'
-import { contractFeatures, doses, photos, products, readings, serviceRequests, sites, visits, waterFeatures } from '../db/schema'
+import { companies, contractFeatures, doses, photos, products, readings, serviceRequests, sites, visits, waterFeatures } from '../db/schema'
 import type { SessionUser } from '../utils/auth'
 import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { recordAudit } from './audit'
 import { rangesFor } from './features'
+import { evaluateAtSite, measuredValues, ofVisit, readingRow, sitePressureKPa, upsertReading } from './readings'
 import { queueVisitReport } from './visit-report'
 import { flushOutbox } from './mail'
 
@@ -33,7 +32,7 @@ async function visitFeatures(v: Visit) {
   return Promise.all(rows.map(async ({ feature: f }) => ({
     id: f.id, name: f.name, kind: f.kind, volumeL: f.measuredVolumeL ?? f.computedVolumeL, fish: f.fish,
     equipment: f.equipment, ranges: (await rangesFor(v.companyId, f)).ranges,
-    pressureKPa: site?.altitudeM != null ? pressureAtAltitudeKPa(site.altitudeM) : 101.325,
+    altitudeM: site?.altitudeM ?? null, pressureKPa: sitePressureKPa(site?.altitudeM),
   })))
 }
 
@@ -93,23 +92,14 @@ export async function saveVisitRecord(actor: SessionUser, id: string, input: Vis
     }
     await t.update(visits).set({ checklist: input.checklist, customerNotes: input.customerNotes, internalNotes: input.internalNotes }).where(eq(visits.id, id))
     await t.delete(readings).where(and(eq(readings.visitId, id), ids.length ? notInArray(readings.id, ids) : undefined))
+    // Stored reasons are written in the company's units (every reader of the record shares them).
+    const [company] = await t.select({ unitSystem: companies.unitSystem }).from(companies).where(eq(companies.id, actor.companyId)).limit(1)
     for (const [i, r] of input.readings.entries()) {
       const f = byId.get(r.featureId)!
-      const { id: rid, featureId, takenAt, ...values } = r
-      let evaluation
-      try {
-        evaluation = evaluateReading(values as WaterReading, f.ranges, { pressureKPa: f.pressureKPa })
-      }
-      catch (err) {
-        if (err instanceof WaterInputError) throw httpError(400, `Invalid body: readings.${i}.${err.field} — ${err.message}`, { fields: { [`readings.${i}.${err.field}`]: err.message } })
-        throw err
-      }
-      const row = {
-        ...values, companyId: actor.companyId, featureId, visitId: id, takenAt: new Date(takenAt), enteredBy: actor.id, source: 'technician' as const,
-        nh3MgL: evaluation.computed.nh3MgL, doSaturationPct: evaluation.computed.doSaturationPct, overall: evaluation.overall, evaluation: evaluation.parameters,
-      }
-      const [kept] = await t.insert(readings).values({ id: rid, ...row }).onConflictDoUpdate({ target: readings.id, set: row, setWhere: eq(readings.visitId, id) }).returning({ id: readings.id })
-      if (!kept) throw httpError(409, 'A reading with this id belongs to another visit')
+      const values = measuredValues(r)
+      const evaluation = evaluateAtSite(values, { ranges: f.ranges, altitudeM: f.altitudeM, unitSystem: company!.unitSystem, fieldPrefix: `readings.${i}.` })
+      const row = readingRow({ id: r.id, companyId: actor.companyId, featureId: r.featureId, visitId: id, takenAt: new Date(r.takenAt), enteredBy: actor.id, source: 'technician' }, values, evaluation)
+      if (!await upsertReading(t, row, ofVisit(id))) throw httpError(409, 'A reading with this id belongs to another visit')
     }
     await t.delete(doses).where(and(eq(doses.visitId, id), doseIds.length ? notInArray(doses.id, doseIds) : undefined))
     for (const d of input.doses) {

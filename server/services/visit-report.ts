@@ -1,8 +1,10 @@
 import { and, asc, eq, gt, inArray } from 'drizzle-orm'
 import { VISIT_TYPE_LABELS } from '../../shared/types/schedule'
+import { formatDose } from '../../shared/utils/water/format'
 import { companies, customers, doses, photos, readings, sites, visits, waterFeatures } from '../db/schema'
 import type { Tx } from '../utils/db'
 import { escapeHtml } from '../utils/html'
+import { callUs } from './alert-mail'
 import { enqueueMail } from './mail'
 import { contactEmails } from './recipients'
 
@@ -10,6 +12,7 @@ const STATUS_WORDS = { ok: 'in range', watch: 'worth watching', act: 'needs acti
 
 export const REPORT_CAUTIONS = [
   'Read and follow each product\'s label; the amounts here are advice worked out from the readings and your pond\'s volume.',
+  'Wear gloves and eye protection when you handle any pond treatment, and never mix products: add each on its own.',
   'Keep pond treatments away from children and pets.',
   'Salt and medications can harm plants and some fish.',
   'Pumps and lights belong on a ground-fault (GFCI/RCD) protected circuit; leave electrical work to a licensed electrician.',
@@ -27,6 +30,7 @@ export async function queueVisitReport(tx: Tx, visitId: string) {
     id: visits.id, companyId: visits.companyId, customerId: visits.customerId, visitType: visits.visitType, finishedAt: visits.finishedAt,
     checklist: visits.checklist, customerNotes: visits.customerNotes, scheduledOn: visits.scheduledOn,
     customerName: customers.name, siteName: sites.name, companyName: companies.name, timeZone: companies.timeZone,
+    unitSystem: companies.unitSystem, phone: companies.phone,
   }).from(visits).innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
     .innerJoin(companies, eq(companies.id, visits.companyId)).where(eq(visits.id, visitId)).limit(1)
   if (!v) return null
@@ -45,14 +49,14 @@ export async function queueVisitReport(tx: Tx, visitId: string) {
   const concerns = readingRows.flatMap(({ r, featureName }) => r.evaluation.filter(p => p.status !== 'ok').map(p => ({ featureName, ...p })))
   const advice = concerns.length
     ? [
-        ...concerns.filter(c => c.status === 'act').map(c => `${c.featureName}: ${c.reason}. We will follow this up; call us at once if fish gasp at the surface or stop feeding.`),
+        ...concerns.filter(c => c.status === 'act').map(c => `${c.featureName}: ${c.reason}. We will follow this up; ${callUs(v.phone, 'at once if fish gasp at the surface or stop feeding')}.`),
         ...concerns.filter(c => c.status === 'watch').map(c => `${c.featureName}: ${c.reason}. Feed lightly and we will retest next visit.`),
       ]
     : ['Everything we tested is in range. Keep the skimmer basket clear and top up with dechlorinated water if the level drops.']
 
   const subject = `${VISIT_TYPE_LABELS[v.visitType]} report — ${v.siteName}, ${fmtDate(v.scheduledOn)}`
   const readingLines = readingRows.flatMap(({ r, featureName }) => r.evaluation.map(p => ({ featureName, text: `${p.reason} (${STATUS_WORDS[p.status]})`, status: p.status })))
-  const doseLines = doseRows.map(({ d, featureName }) => `${featureName}: ${d.productName} — ${Number(d.amount.toFixed(2))} ${d.unit}`)
+  const doseLines = doseRows.map(({ d, featureName }) => `${featureName}: ${d.productName} — ${formatDose(d.amount, d.unit, v.unitSystem)}`)
 
   const text = [
     `Hello ${v.customerName},`, '',
@@ -63,6 +67,7 @@ export async function queueVisitReport(tx: Tx, visitId: string) {
     'Until the next visit:', ...advice.map(a => `- ${a}`), '',
     ...(v.customerNotes ? ['Notes from your technician:', v.customerNotes, ''] : []),
     next ? `Next visit: ${VISIT_TYPE_LABELS[next.visitType]} on ${fmtDate(next.scheduledOn)}.` : 'No further visit is booked yet.', '',
+    ...(v.phone ? [`Questions? Call ${v.companyName} on ${v.phone}.`, ''] : []),
     'Please note:', ...REPORT_CAUTIONS.map(c => `- ${c}`),
   ].join('\n')
 
@@ -78,6 +83,7 @@ export async function queueVisitReport(tx: Tx, visitId: string) {
 ${v.customerNotes ? `<h2 style="font-size:16px">Notes from your technician</h2><p>${escapeHtml(v.customerNotes)}</p>` : ''}
 ${photoRows.length ? `<h2 style="font-size:16px">Photos</h2><p>${photoRows.map(p => `<img src="cid:photo-${p.id}" alt="${escapeHtml(p.caption || 'Visit photo')}" width="160" style="margin:2px;border-radius:6px">`).join('')}</p>` : ''}
 <p><strong>${next ? `Next visit: ${escapeHtml(VISIT_TYPE_LABELS[next.visitType])} on ${escapeHtml(fmtDate(next.scheduledOn))}.` : 'No further visit is booked yet.'}</strong></p>
+${v.phone ? `<p>Questions? Call ${escapeHtml(v.companyName)} on <a href="tel:${escapeHtml(v.phone.replace(/[^\d+]/g, ''))}">${escapeHtml(v.phone)}</a>.</p>` : ''}
 <p style="font-size:12px;color:#625b51">${REPORT_CAUTIONS.map(escapeHtml).join('<br>')}</p>
 </body></html>`
 

@@ -1,17 +1,21 @@
 import type { EvaluateRequest } from '../../shared/schemas/water'
 import {
-  DEFAULT_PROFILES, dosingSuggestions, evaluateReading, mergeRanges, pressureAtAltitudeKPa, profileKeyForKind, WaterInputError,
+  DEFAULT_PROFILES, dosingSuggestions, mergeRanges, profileKeyForKind, WaterInputError, type DosingSuggestionsInput,
 } from '../../shared/utils/water-chemistry'
+import type { UnitSystem } from '../../shared/utils/water/format'
 import type { SessionUser } from '../utils/auth'
-import { httpError } from '../utils/errors'
+import { readerContext } from './company'
 import { getFeature } from './features'
+import { evaluateAtSite, readingInputError } from './readings'
 
 /**
  * Evaluates a reading for a feature (its volume, ranges and site altitude) or for a given volume
- * (the kind's default ranges, optionally overridden). Returns the computed values, statuses and
- * dosing suggestions together with the inputs they came from.
+ * (the kind's default ranges, optionally overridden), through the one readings service. Returns
+ * the computed values, statuses and dosing suggestions, in the caller's units, together with the
+ * inputs they came from.
  */
 export async function evaluateWater(actor: SessionUser, req: EvaluateRequest) {
+  const { unitSystem } = await readerContext(actor)
   let volumeL = req.volumeL
   let ranges = req.ranges ? mergeRanges(DEFAULT_PROFILES[profileKeyForKind(req.kind ?? 'koi_pond')].ranges, req.ranges) : DEFAULT_PROFILES[profileKeyForKind(req.kind ?? 'koi_pond')].ranges
   let altitudeM = req.altitudeM ?? null
@@ -25,31 +29,38 @@ export async function evaluateWater(actor: SessionUser, req: EvaluateRequest) {
     altitudeM = req.altitudeM ?? f.site.altitudeM ?? null
     fish = f.fish.some(s => s.count > 0)
   }
+  const { pressureKPa, ...evaluation } = evaluateAtSite(req.reading, { ranges, altitudeM, unitSystem, fieldPrefix: 'reading.' })
   try {
-    const pressureKPa = altitudeM == null ? 101.325 : pressureAtAltitudeKPa(altitudeM)
-    const evaluation = evaluateReading(req.reading, ranges, { pressureKPa })
-    const suggestions = dosingSuggestions({
+    const suggestions = dosingSuggestions(dosingInput({
       reading: req.reading, volumeL: volumeL!, ranges, topUpLitres: req.topUpLitres, dechlorinatorRate: req.dechlorinatorRate ?? null, fish,
-    })
+    }, unitSystem))
     return {
       feature,
       inputs: { volumeL, altitudeM, pressureKPa, topUpLitres: req.topUpLitres ?? 0 },
+      unitSystem,
       ...evaluation,
       suggestions,
       cautions: WATER_CAUTIONS,
     }
   }
   catch (err) {
-    if (err instanceof WaterInputError) {
-      const field = ['volumeL', 'topUpLitres', 'altitudeM'].includes(err.field) ? err.field : `reading.${err.field}`
-      throw httpError(400, `Invalid body: ${field} — ${err.message}`, { fields: { [field]: err.message } })
-    }
+    if (err instanceof WaterInputError) throw readingInputError(err, 'reading.')
     throw err
   }
 }
 
+/**
+ * The dosing engine's input in the reader's units: the engine writes its amounts and reasons in
+ * `unitSystem` (an engine that does not know the option yet ignores it).
+ */
+function dosingInput(input: DosingSuggestionsInput, unitSystem: UnitSystem): DosingSuggestionsInput {
+  const withUnits = { ...input, unitSystem }
+  return withUnits
+}
+
 export const WATER_CAUTIONS = [
   'Dosing figures are advice computed from the readings and volume shown; read and follow each product\'s label first.',
+  'Wear gloves and eye protection when handling any treatment, and never mix products: add each on its own.',
   'Keep chemicals away from children and pets.',
   'Salt and medications can harm plants and some fish.',
   'Pumps, lights and heaters belong on a ground-fault (GFCI/RCD) protected circuit installed to local code by a licensed electrician.',

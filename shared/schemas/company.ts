@@ -18,6 +18,20 @@ export function isCurrency(code: string) {
   return supported ? supported.includes(code) : /^[A-Z]{3}$/.test(code)
 }
 
+/** Characters a phone number may be written with, however the company likes to write it. */
+const PHONE_CHARS = /^[\d\s+\-().]*$/
+
+/**
+ * The number customers are told to call: digits with spaces, "+", "-", parentheses and dots as
+ * people write them ("(555) 014-2290", "+44 20 7946 0018"); empty for none. 7 to 15 digits (E.164
+ * allows at most 15), at most 30 characters.
+ */
+export const phoneNumber = text(30).refine(s => PHONE_CHARS.test(s), 'Use digits, spaces, +, -, dots and parentheses only, e.g. (555) 014-2290')
+  .refine((s) => {
+    const digits = s.replace(/\D/g, '').length
+    return s === '' || (digits >= 7 && digits <= 15)
+  }, 'A phone number has 7 to 15 digits, e.g. (555) 014-2290')
+
 /** The company's settings; a PATCH changes exactly the fields sent. */
 export const companyUpdateSchema = updateSchema({
   name: text(120, 'Enter the company name'),
@@ -34,6 +48,8 @@ export const companyUpdateSchema = updateSchema({
   baseLongitude: decimal('Longitude', -180, 180).nullable(),
   /** Printed on invoices, one line per line. */
   address: text(400),
+  /** Shown wherever a customer is told to call; empty when the company gives none. */
+  phone: phoneNumber,
   billingEmail: z.union([z.literal(''), z.email('Use an e-mail address like billing@example.com').max(254, 'Use at most 254 characters')]),
   paymentTermsDays: wholeNumber('Payment terms', 0, 120, { min: 'At least 0 days (due on receipt)', max: 'At most 120 days' }),
 })

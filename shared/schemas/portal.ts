@@ -2,10 +2,11 @@ import { z } from 'zod'
 import { MAX_REQUEST_PHOTOS, REQUEST_KINDS } from '../types/requests'
 import { pageQuery } from './common'
 import { localDate, text, timestamp, updateSchema, wholeNumber } from './fields'
-import { waterReadingSchema } from './water'
+import type { UnitSystem } from '../utils/water/format'
+import { perUnitSystem, waterReadingSchemaFor } from './water'
 
-/** A customer's own test (test strips or a drop kit) between visits; saved as customer-entered. */
-export const customerReadingSchema = waterReadingSchema.pick({
+/** A customer's own test (test strips or a drop kit) between visits; saved as customer-entered. Messages in `system`'s units. */
+export const customerReadingSchemaFor = perUnitSystem((system: UnitSystem) => waterReadingSchemaFor(system).pick({
   temperatureC: true, pH: true, totalAmmoniaMgL: true, ammoniaBasis: true, nitriteMgL: true, nitrateMgL: true, khMgL: true, ghMgL: true, chlorineMgL: true,
 }).extend({
   /** Made by the browser, so sending twice saves one reading. */
@@ -14,7 +15,8 @@ export const customerReadingSchema = waterReadingSchema.pick({
   takenAt: timestamp,
 }).refine(r => ['temperatureC', 'pH', 'totalAmmoniaMgL', 'nitriteMgL', 'nitrateMgL', 'khMgL', 'ghMgL', 'chlorineMgL'].some(k => r[k as keyof typeof r] != null), {
   path: ['pH'], message: 'Enter at least one result',
-})
+}))
+export const customerReadingSchema = customerReadingSchemaFor('metric')
 export type CustomerReadingInput = z.output<typeof customerReadingSchema>
 
 export const serviceRequestSchema = z.object({

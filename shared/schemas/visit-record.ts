@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { createSchema, decimal, text, timestamp, updateSchema } from './fields'
-import { waterReadingSchema } from './water'
+import type { UnitSystem } from '../utils/water/format'
+import { perUnitSystem, waterReadingSchemaFor } from './water'
 
 export const CHECK_STATES = ['done', 'not_needed', 'problem'] as const
 
@@ -10,12 +11,14 @@ export const checklistStateSchema = z.object({
   note: text(500).default(''),
 }).refine(c => c.state !== 'problem' || c.note.length > 0, { path: ['note'], message: 'Say what the problem is' })
 
-export const recordedReadingSchema = waterReadingSchema.extend({
+/** One test as recorded on a visit; messages quote limits in `system`'s units. */
+export const recordedReadingSchemaFor = perUnitSystem((system: UnitSystem) => waterReadingSchemaFor(system).extend({
   /** Made by the browser: a resubmission updates the same reading. */
   id: z.uuid('Not a valid reading id'),
   featureId: z.uuid('Choose the water feature'),
   takenAt: timestamp,
-})
+}))
+export const recordedReadingSchema = recordedReadingSchemaFor('metric')
 export type RecordedReading = z.output<typeof recordedReadingSchema>
 
 export const recordedDoseSchema = z.object({
@@ -31,13 +34,14 @@ export const recordedDoseSchema = z.object({
 export type RecordedDose = z.output<typeof recordedDoseSchema>
 
 /** The whole record of a visit as the technician's phone holds it; saving it twice is harmless. */
-export const visitRecordSchema = z.object({
+export const visitRecordSchemaFor = perUnitSystem((system: UnitSystem) => z.object({
   checklist: z.array(checklistStateSchema).max(60),
   customerNotes: text(4000).default(''),
   internalNotes: text(4000).default(''),
-  readings: z.array(recordedReadingSchema).max(40, 'At most 40 water tests on one visit'),
+  readings: z.array(recordedReadingSchemaFor(system)).max(40, 'At most 40 water tests on one visit'),
   doses: z.array(recordedDoseSchema).max(60, 'At most 60 doses on one visit'),
-})
+}))
+export const visitRecordSchema = visitRecordSchemaFor('metric')
 export type VisitRecordInput = z.output<typeof visitRecordSchema>
 
 export const skipSchema = z.object({ reason: text(300, 'Say why the visit was skipped') })

@@ -63,8 +63,11 @@ describe('running a visit', () => {
     const csv = await fetch(`${baseUrl()}/api/features/${v.featureId}/readings?format=csv`, { headers: { authorization: `Bearer ${owner}` } })
     expect(csv.headers.get('content-type')).toMatch(/text\/csv/)
     const lines = (await csv.text()).trim().split('\r\n')
-    expect(lines[0]).toMatch(/^takenAt,source,temperatureC,pH/)
+    // Headed by the catalogue's labels in the company's units (a US company).
+    expect(lines[0]).toMatch(/^Taken at,Entered by,Water temperature \(°F\),pH,/)
     expect(lines).toHaveLength(3)
+    // Values in the same units: 24 °C = 24 × 1.8 + 32 = 75.2 °F (exact definition).
+    expect(lines.slice(1).map(l => l.split(',')[2])).toEqual(['75.2', '75.2'])
   })
 
   it('checks photos from their bytes, strips EXIF, stores a thumbnail; bad uploads are refused and nothing is kept', async () => {
@@ -122,7 +125,9 @@ describe('running a visit', () => {
     expect(mail.subject).toMatch(/Routine maintenance report/)
     expect(mail.text).toContain('pH 7.6')
     expect(mail.text).toMatch(/KH 60 mg\/L .*below/)
-    expect(mail.text).toContain('Sodium bicarbonate (KH buffer) — 250 g')
+    // In the company's units (US): 250 g / 28.349523125 g per oz (NIST Handbook 44) = 8.8 oz, measured out to the half ounce.
+    expect(mail.text).toContain('Sodium bicarbonate (KH buffer) — 9 oz')
+    expect(mail.text).not.toMatch(/\b250 g\b|°C/)
     expect(mail.text).toContain('Lilies trimmed back.')
     expect(mail.text).toMatch(/GFCI\/RCD/)
     expect(mail.html).toMatch(/<img src="(cid:photo-|data:image\/jpeg)/)

@@ -45,20 +45,22 @@ describe('POST /api/water/evaluate', () => {
 
   it('rejects bad input with 400 and a message naming the field', async () => {
     const token = await tokenFor(demo.tess)
-    const cases: Array<[unknown, string]> = [
-      [{ volumeL: 1000, reading: { pH: 15 } }, 'reading.pH'],
-      [{ volumeL: 1000, reading: { temperatureC: -3 } }, 'reading.temperatureC'],
-      [{ volumeL: -5, reading: {} }, 'volumeL'],
-      [{ reading: { pH: 7 } }, 'volumeL'],
-      [{ volumeL: 1000, reading: { totalAmmoniaMgL: 'lots' } }, 'reading.totalAmmoniaMgL'],
-      [{ volumeL: 1000, reading: { ammoniaBasis: 'NO3' } }, 'reading.ammoniaBasis'],
-      [{ featureId: 'not-an-id', reading: {} }, 'featureId'],
+    // The message names a water value as the form labels it (the catalogue's label), other fields by their path.
+    const cases: Array<[unknown, string, string]> = [
+      [{ volumeL: 1000, reading: { pH: 15 } }, 'reading.pH', 'pH'],
+      [{ volumeL: 1000, reading: { temperatureC: -3 } }, 'reading.temperatureC', 'Water temperature'],
+      [{ volumeL: -5, reading: {} }, 'volumeL', 'volumeL'],
+      [{ reading: { pH: 7 } }, 'volumeL', 'volumeL'],
+      [{ volumeL: 1000, reading: { totalAmmoniaMgL: 'lots' } }, 'reading.totalAmmoniaMgL', 'Total ammonia (TAN)'],
+      [{ volumeL: 1000, reading: { ammoniaBasis: 'NO3' } }, 'reading.ammoniaBasis', 'reading.ammoniaBasis'],
+      [{ featureId: 'not-an-id', reading: {} }, 'featureId', 'featureId'],
     ]
-    for (const [body, field] of cases) {
+    for (const [body, field, name] of cases) {
       const r = await api('/api/water/evaluate', { method: 'POST', token, body })
       expect(r.status, JSON.stringify(body)).toBe(400)
       expect(Object.keys(r.body.data.fields), JSON.stringify(body)).toContain(field)
-      expect(r.body.message).toContain(field)
+      expect(r.body.message).toContain(`Invalid body: ${name} — `)
+      expect(r.body.message).not.toMatch(/reading\.(?!ammoniaBasis)\w/)
     }
   })
 

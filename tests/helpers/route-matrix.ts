@@ -61,6 +61,7 @@ export const MATRIX: Record<string, Who[] | 'public'> = {
   'GET /api/alerts/counts': ['owner', 'technician'],
   'PATCH /api/alerts/:id': ['owner', 'technician'],
   'POST /api/alerts/scan': ['owner'],
+  'POST /api/alerts/:id/retest': ['owner'],
   'GET /api/calendar/feeds': ['owner', 'technician', 'customer'],
   'POST /api/calendar/feeds': ['owner', 'technician', 'customer'],
   'DELETE /api/calendar/feeds/:id': ['owner', 'technician', 'customer'],

@@ -34,6 +34,8 @@ export const alerts = pgTable('alerts', {
   closedBy: uuid('closed_by').references(() => users.id, { onDelete: 'set null' }),
   note: text('note').notNull().default(''),
   notifiedAt: timestamp('notified_at', { withTimezone: true }),
+  /** The retest visit the owner booked from this alert (booking again returns it). */
+  retestVisitId: uuid('retest_visit_id').references(() => visits.id, { onDelete: 'set null' }),
   ...timestamps,
 }, t => [
   uniqueIndex('alerts_one_open_per_subject').on(t.companyId, t.subjectKey).where(sql`status <> 'resolved'`),

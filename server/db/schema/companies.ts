@@ -23,6 +23,8 @@ export const companies = pgTable('companies', {
   baseLongitude: doublePrecision('base_longitude'),
   /** Printed on invoices. */
   address: text('address').notNull().default(''),
+  /** The number customers are told to call, as the company writes it; empty for none. */
+  phone: text('phone').notNull().default(''),
   billingEmail: text('billing_email').notNull().default(''),
   /** Invoices fall due this many days after they are issued. */
   paymentTermsDays: smallint('payment_terms_days').notNull().default(30),

@@ -1,7 +1,8 @@
 import { z } from 'zod'
 import { idParam, pageQuery } from '../../../../shared/schemas/common'
 import { localDate } from '../../../../shared/schemas/fields'
-import { featureReadings, READING_CSV_COLUMNS, READING_SORTS, toCsv } from '../../../services/history'
+import { readerContext } from '../../../services/company'
+import { featureReadings, READING_SORTS, readingsCsv } from '../../../services/history'
 
 const query = pageQuery.omit({ q: true }).extend({
   sort: z.enum(READING_SORTS).default('takenAt'),
@@ -18,9 +19,10 @@ export default defineEventHandler(async (event) => {
   const q = queryAs(event, query)
   if (q.format === 'csv') {
     const { rows } = await featureReadings(user, id, q, true)
+    const { unitSystem } = await readerContext(user)
     setResponseHeader(event, 'content-type', 'text/csv; charset=utf-8')
     setResponseHeader(event, 'content-disposition', `attachment; filename="water-tests-${id}.csv"`)
-    return toCsv(READING_CSV_COLUMNS, rows)
+    return readingsCsv(rows, unitSystem)
   }
   return featureReadings(user, id, q)
 })
