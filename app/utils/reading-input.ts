@@ -23,7 +23,7 @@ const EPS = 1e-9
  */
 export function readParameter(key: ReadingKey, text: string | number | null | undefined, system: UnitSystem, label = PARAMETER_CATALOGUE[key].label): ReadNumber {
   const r = readNumber(text)
-  if (r.value == null) return r.error ? { value: null, error: `${label}: ${r.error}` } : r
+  if (r.value == null) return r
   const { min, max } = readingLimits(key)
   const shown = r.value
   if (min !== undefined && shown < parameterToDisplay(key, min, system) - EPS) {
