@@ -166,6 +166,8 @@ for (const system of ['us', 'metric'] as const) {
         const card = await visibleText(cp)
         expect(foreignUnits(card, system), 'units of the other system on the portal feature page').toEqual([])
         expect(await cp.locator('[data-chart="temperature"] [role="img"]').first().getAttribute('aria-label')).toContain(t.temperatureUnit)
+        // The lines draw with a short animation; the screenshot waits for it.
+        await cp.waitForTimeout(800)
         await shoot(cp, `portal-feature-${system}-${viewport}`)
         await customer.close()
         await context.close()
