@@ -1,6 +1,7 @@
 import { and, asc, eq, gte, type SQL } from 'drizzle-orm'
 import { DateTime } from 'luxon'
 import type { RangeTable } from '../../shared/types/water'
+import { PARAMETER_CATALOGUE, READING_KEYS, type ReadingKey } from '../../shared/utils/water/parameters'
 import type { VisitType } from '../../shared/types/schedule'
 import { companies, doses, readings, visits } from '../db/schema'
 import type { SessionUser } from '../utils/auth'
@@ -11,36 +12,16 @@ import { getFeature } from './features'
 export const SERIES_RANGES = ['season', 'year', 'all'] as const
 export type SeriesRange = (typeof SERIES_RANGES)[number]
 
-/** Reading columns that can be charted, in the order the charts appear. */
-export const CHART_PARAMETERS = [
-  'temperatureC', 'pH', 'totalAmmoniaMgL', 'nh3MgL', 'nitriteMgL', 'nitrateMgL', 'khMgL', 'ghMgL',
-  'dissolvedOxygenMgL', 'doSaturationPct', 'saltGL', 'chlorineMgL', 'phosphateMgL', 'waterLevelMm',
-] as const
-export type ChartParameter = (typeof CHART_PARAMETERS)[number]
-
-/** Names and the SI units the values are stored in (the screens convert temperature for US companies). */
-const META: Record<ChartParameter, { label: string, unit: string }> = {
-  temperatureC: { label: 'Temperature', unit: '°C' },
-  pH: { label: 'pH', unit: '' },
-  totalAmmoniaMgL: { label: 'Total ammonia (TAN, as N)', unit: 'mg/L' },
-  nh3MgL: { label: 'Un-ionized ammonia (NH3)', unit: 'mg/L' },
-  nitriteMgL: { label: 'Nitrite', unit: 'mg/L' },
-  nitrateMgL: { label: 'Nitrate', unit: 'mg/L' },
-  khMgL: { label: 'KH (as CaCO3)', unit: 'mg/L' },
-  ghMgL: { label: 'GH (as CaCO3)', unit: 'mg/L' },
-  dissolvedOxygenMgL: { label: 'Dissolved oxygen', unit: 'mg/L' },
-  doSaturationPct: { label: 'Oxygen saturation', unit: '%' },
-  saltGL: { label: 'Salt', unit: 'g/L' },
-  chlorineMgL: { label: 'Chlorine', unit: 'mg/L' },
-  phosphateMgL: { label: 'Phosphate', unit: 'mg/L' },
-  waterLevelMm: { label: 'Water level', unit: 'mm' },
-}
+/** Reading columns that can be charted, in the order the charts appear: the parameter catalogue's. */
+export const CHART_PARAMETERS = READING_KEYS
+export type ChartParameter = ReadingKey
 
 /** Most points sent per parameter; longer histories are thinned evenly (first and last kept). */
 export const MAX_POINTS = 5000
 const MAX_MARKERS = 2000
 
 export type SeriesPoint = [time: string, value: number]
+/** One parameter's points, in the SI unit it is stored in (`unit`); the screens show them in the company's units. */
 export interface ParameterSeries { key: ChartParameter, label: string, unit: string, points: SeriesPoint[] }
 export interface FeatureSeries {
   featureId: string
@@ -123,7 +104,7 @@ export async function featureSeries(
     range: q.range,
     from: from?.toISOString() ?? null,
     to: now.toISOString(),
-    parameters: shown.map(k => ({ key: k, ...META[k], points: thin(series.get(k)!) })),
+    parameters: shown.map(k => ({ key: k, label: PARAMETER_CATALOGUE[k].label, unit: PARAMETER_CATALOGUE[k].siUnit, points: thin(series.get(k)!) })),
     ranges: feature.ranges,
     visits: visitRows.map(v => ({ date: v.date, type: v.type, time: (v.startedAt ?? v.finishedAt ?? v.startsAt).toISOString() })),
     doses: doseRows.map(d => ({ time: d.time.toISOString(), productName: d.productName, amount: d.amount, unit: d.unit })),

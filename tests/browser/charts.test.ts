@@ -49,7 +49,7 @@ describe('water trend charts', () => {
       const trends = await chartsDrawn(page)
 
       const ids = await chartIds(page)
-      expect(ids).toEqual(expect.arrayContaining(['temperature', 'ph', 'ammonia', 'kh', 'oxygen']))
+      expect(ids).toEqual(expect.arrayContaining(['temperature', 'ph', 'ammonia', 'hardness', 'oxygen']))
       // Each chart says what it shows, its latest value and status.
       const ph = trends.locator('figure[data-chart="ph"] [role="img"]')
       expect(await ph.getAttribute('aria-label')).toMatch(/^pH: latest \d+(\.\d)? on \w{3} \d+, \d{4}, (in range|watch|act now)\./)
@@ -60,7 +60,7 @@ describe('water trend charts', () => {
       const rows = details.locator('tbody tr')
       expect(await rows.count()).toBeGreaterThan(0)
       expect(await rows.count()).toBeLessThanOrEqual(20)
-      expect(await details.locator('thead').textContent()).toMatch(/TAN \(mg\/L\).*NH3 \(mg\/L\)/)
+      expect(await details.locator('thead').textContent()).toMatch(/Total ammonia \(TAN\) \(mg\/L\).*Un-ionized ammonia \(mg\/L\)/)
       expect(await rows.first().textContent()).toMatch(/\d\.\d+/)
       await shot(page, `charts-owner-${size}`)
 
@@ -94,10 +94,10 @@ describe('water trend charts', () => {
       await page.getByRole('link', { name: /Koi pond/ }).first().click()
       await page.getByRole('heading', { level: 1, name: 'Koi pond' }).waitFor()
       await chartsDrawn(page)
-      expect(await chartIds(page)).toEqual(['temperature', 'ph', 'ammonia', 'kh'])
+      expect(await chartIds(page)).toEqual(['temperature', 'ph', 'ammonia', 'hardness'])
       expect(await page.getByRole('button', { name: 'This season' }).isVisible()).toBe(true)
-      const kh = page.locator('figure[data-chart="kh"] [role="img"]')
-      expect(await kh.getAttribute('aria-label')).toMatch(/^KH .*: latest \d+ mg\/L on /)
+      const kh = page.locator('figure[data-chart="hardness"] [role="img"]')
+      expect(await kh.getAttribute('aria-label')).toMatch(/^Hardness \(KH and GH\): latest (KH )?\d+ mg\/L.* on /)
       await shot(page, `charts-customer-${size}`)
       expect(errors, errors.join('\n')).toEqual([])
       await context.close()

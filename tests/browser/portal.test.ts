@@ -31,15 +31,15 @@ describe('the customer portal on a phone', () => {
     await shot(cp, 'portal-report-phone')
     await accessible(cp, '/portal/visits/:id')
 
-    // The dosing helper on the feature's page: pond salt from 0 to 1 ppt.
+    // The dosing helper on the feature's page: pond salt from 0 to 0.1 % (1 g/L), in the US company's units.
     await cp.goto(`${baseUrl()}/portal`)
     await cp.getByTestId('portal-feature').first().click()
     await cp.getByRole('heading', { name: 'Dosing helper' }).waitFor()
     await cp.getByLabel('Pond salt').check()
-    await cp.getByLabel('Salt now (ppt; 1 ppt = 0.1 %)').fill('0')
-    await cp.getByLabel('Target (ppt)').fill('1')
+    await cp.getByLabel('Salt now (%)').fill('0')
+    await cp.getByLabel('Target salt (%)').fill('0.1')
     const result = cp.getByTestId('dose-result')
-    await expect.poll(() => result.textContent()).toMatch(/Add \d[\d,.]* lb \([\d,.]+ kg\)/)
+    await expect.poll(() => result.textContent()).toMatch(/Add \d[\d,.]* lb(?! \()/)
     expect(await result.textContent()).toMatch(/plants and some fish/)
     expect(await result.textContent()).toMatch(/label first/)
     await result.scrollIntoViewIfNeeded()

@@ -41,7 +41,7 @@ describe('a technician runs a visit on a phone', () => {
       await page.getByRole('radiogroup', { name: 'Skimmer emptied' }).getByRole('radio', { name: 'Done' }).click()
       await page.getByRole('radiogroup', { name: 'Water tested' }).getByRole('radio', { name: 'Done' }).click()
       await page.getByRole('button', { name: 'Add a water test' }).click()
-      await fillTest(page, 1, { 'temperature': '75', 'pH': '8.4', 'Total ammonia': '1.5' })
+      await fillTest(page, 1, { 'Water temperature (°F)': '75', 'pH': '8.4', 'Total ammonia (TAN) (mg/L as N)': '1.5' })
       await page.getByText(/Un-ionized ammonia 0\.\d+ mg\/L as NH3/).first().waitFor()
       await page.getByText('Act today').first().waitFor()
       if (cut) {
@@ -50,7 +50,7 @@ describe('a technician runs a visit on a phone', () => {
         await context.setOffline(true)
       }
       await page.getByRole('button', { name: 'Add a water test' }).click()
-      await fillTest(page, 2, { 'temperature': '75', 'pH': '7.8', 'KH': '50' })
+      await fillTest(page, 2, { 'Water temperature (°F)': '75', 'pH': '7.8', 'KH (mg/L as CaCO3)': '50' })
       await page.getByText(/sodium bicarbonate/i).first().waitFor()
       await page.getByRole('button', { name: 'Record this dose' }).first().click()
       await page.getByLabel('Test koi pond: top-up').fill('50')
