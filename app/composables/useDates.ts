@@ -19,6 +19,8 @@ export function useDates() {
     dateTime: (when: When, empty?: string) => format(when, { dateStyle: 'medium', timeStyle: 'short' }, empty),
     /** "Mar 4, 2026" */
     date: (when: When, empty?: string) => format(when, { dateStyle: 'medium' }, empty),
+    /** A calendar day of the company ("2026-03-04") as "Wed, Mar 4, 2026" (no time zone shift: it is already local). */
+    day: (ymd: string | null | undefined, empty = '—') => (ymd ? new Intl.DateTimeFormat('en-US', { weekday: 'short', month: 'short', day: 'numeric', year: 'numeric', timeZone: 'UTC' }).format(new Date(`${ymd}T12:00:00Z`)) : empty),
     /** "3:05 PM" */
     time: (when: When, empty?: string) => format(when, { hour: 'numeric', minute: '2-digit' }, empty),
   }

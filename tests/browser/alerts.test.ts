@@ -33,3 +33,27 @@ describe('alerts in the browser', () => {
     })
   }
 })
+
+describe('a retest visit from an alert', () => {
+  it('the owner opens the alert e-mail\'s link and books the retest in one click; the row then links to the visit', async () => {
+    const owner = await tokenFor(demo.owner)
+    const rows = (await api('/api/alerts?status=active&severity=act&pageSize=100', { token: owner })).body.rows as Array<{ id: string, featureId: string | null, retestVisitId: string | null, title: string }>
+    const alert = rows.find(r => r.featureId && !r.retestVisitId)
+    expect(alert, 'the demo has an act-level alert about a feature').toBeTruthy()
+    const context = await browser.newContext({ viewport: VIEWPORTS.phone, isMobile: true, hasTouch: true })
+    const page = await context.newPage()
+    await signInThroughForm(page, demo.owner)
+    await page.waitForURL(url => url.pathname === '/')
+    await page.goto(`${baseUrl()}/alerts?retest=${alert!.id}`)
+    await page.getByText('Book a water retest at this feature on the next working day?').waitFor()
+    await shot(page, 'alerts-retest-offer-phone')
+    await page.getByRole('button', { name: 'Book a retest visit' }).first().click()
+    await page.getByRole('status').filter({ hasText: 'Retest booked for' }).waitFor()
+    const after = (await api(`/api/alerts?featureId=${alert!.featureId}&status=active&pageSize=100`, { token: owner })).body.rows as Array<{ id: string, retestVisitId: string | null }>
+    const visitId = after.find(r => r.id === alert!.id)?.retestVisitId
+    expect(visitId).toBeTruthy()
+    expect(await page.getByRole('link', { name: 'Open the visit' }).getAttribute('href')).toBe(`/visits/${visitId}`)
+    await shot(page, 'alerts-retest-booked-phone')
+    await context.close()
+  })
+})
