@@ -7,6 +7,7 @@ import { baseUrl, demo } from '../helpers/api'
 import { allowPageErrors, ARTIFACTS, launch, shot, signInThroughForm, VIEWPORTS } from '../helpers/browser'
 import { waitForMail } from '../helpers/mail'
 import { visitForTessToday } from '../helpers/visits'
+import { foreignUnits } from '../helpers/units-scan'
 
 let browser: Browser
 let photoPath: string
@@ -75,7 +76,9 @@ describe('a technician runs a visit on a phone', () => {
       expect(mail.text).toContain('pH 8.4')
       expect(mail.text).toContain('pH 7.8')
       expect(mail.text).toMatch(/Sodium bicarbonate \(KH buffer\) — \d+/)
-      expect(mail.text).toMatch(/Top-up water — 189\.3 L/)
+      // 50 typed by a technician of a US company: US gallons, and no metric unit anywhere in the report.
+      expect(mail.text).toMatch(/Top-up water — 50 US gal/)
+      expect(foreignUnits(mail.text, 'us')).toEqual([])
       expect(mail.text).toContain('Net repaired on the north side.')
       expect(mail.html).toMatch(/<img src="(cid:photo-|data:image\/jpeg)/)
       // One reading per test, however many times the phone re-sent the record.
