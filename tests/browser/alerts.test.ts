@@ -1,7 +1,9 @@
+import { randomUUID } from 'node:crypto'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser } from 'playwright-core'
 import { api, baseUrl, demo, tokenFor } from '../helpers/api'
 import { launch, shot, signInThroughForm, VIEWPORTS } from '../helpers/browser'
+import { visitForTessToday } from '../helpers/visits'
 
 let browser: Browser
 beforeAll(async () => {
@@ -37,9 +39,16 @@ describe('alerts in the browser', () => {
 describe('a retest visit from an alert', () => {
   it('the owner opens the alert e-mail\'s link and books the retest in one click; the row then links to the visit', async () => {
     const owner = await tokenFor(demo.owner)
-    const rows = (await api('/api/alerts?status=active&severity=act&pageSize=100', { token: owner })).body.rows as Array<{ id: string, featureId: string | null, retestVisitId: string | null, title: string }>
+    const tess = await tokenFor(demo.tess)
+    // A pond of its own whose test is at the act level (koi pond defaults: total ammonia act above 1.0 mg/L as N).
+    const v = await visitForTessToday('retest-browser')
+    await api(`/api/visits/${v.visitId}/start`, { method: 'POST', token: tess })
+    const reading = { id: randomUUID(), featureId: v.featureId, takenAt: new Date(Date.now() - 3_600_000).toISOString(), ammoniaBasis: 'N', temperatureC: 24, pH: 8.0, totalAmmoniaMgL: 2.0 }
+    expect((await api(`/api/visits/${v.visitId}/record`, { method: 'PUT', token: tess, body: { checklist: [], doses: [], readings: [reading] } })).status).toBe(200)
+    await api('/api/alerts/scan', { method: 'POST', token: owner })
+    const rows = (await api(`/api/alerts?featureId=${v.featureId}&status=active&severity=act&pageSize=100`, { token: owner })).body.rows as Array<{ id: string, featureId: string | null, retestVisitId: string | null, title: string }>
     const alert = rows.find(r => r.featureId && !r.retestVisitId)
-    expect(alert, 'the demo has an act-level alert about a feature').toBeTruthy()
+    expect(alert, 'an act-level alert about the test pond').toBeTruthy()
     const context = await browser.newContext({ viewport: VIEWPORTS.phone, isMobile: true, hasTouch: true })
     const page = await context.newPage()
     await signInThroughForm(page, demo.owner)
