@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import sharp from 'sharp'
 import type { Browser, Page } from 'playwright-core'
 import { api, baseUrl, demo, tokenFor } from '../helpers/api'
-import { launch, seriousA11yViolations, shot, signInThroughForm, VIEWPORTS } from '../helpers/browser'
+import { launch, seriousA11yViolations, shot, signInThroughForm, VIEWPORTS, waitForHydration } from '../helpers/browser'
 
 let browser: Browser
 beforeAll(async () => { browser = await launch() })
@@ -26,6 +26,7 @@ describe('the customer portal on a phone', () => {
 
     // The latest visit report.
     await cp.goto(`${baseUrl()}/portal/visits`)
+    await waitForHydration(cp)
     await cp.getByTestId('visit-report-link').first().click()
     await cp.getByRole('heading', { name: 'What we did' }).waitFor()
     await shot(cp, 'portal-report-phone')
@@ -33,6 +34,7 @@ describe('the customer portal on a phone', () => {
 
     // The dosing helper on the feature's page: pond salt from 0 to 0.1 % (1 g/L), in the US company's units.
     await cp.goto(`${baseUrl()}/portal`)
+    await waitForHydration(cp)
     await cp.getByTestId('portal-feature').first().click()
     await cp.getByRole('heading', { name: 'Dosing helper' }).waitFor()
     await cp.getByLabel('Pond salt').check()
@@ -48,6 +50,7 @@ describe('the customer portal on a phone', () => {
 
     // A service request with a photo.
     await cp.goto(`${baseUrl()}/portal/requests/new`)
+    await waitForHydration(cp)
     await cp.getByLabel('Leak or water loss').check()
     const description = `The pond loses an inch a day since the weekend (${Date.now()})`
     await cp.getByLabel('What is happening?').fill(description)
@@ -69,6 +72,7 @@ describe('the customer portal on a phone', () => {
     await signInThroughForm(op, demo.owner)
     await op.waitForURL(url => url.pathname === '/')
     await op.goto(`${baseUrl()}/requests`)
+    await waitForHydration(op)
     await op.getByTestId('inbox-request').filter({ hasText: description.slice(0, 40) }).click()
     await op.getByRole('img', { name: 'Photo from the customer' }).waitFor()
     await op.getByLabel('Start').fill('15:30')
@@ -83,6 +87,7 @@ describe('the customer portal on a phone', () => {
     expect(await card.getByTestId('request-visit').textContent()).toMatch(/Visit booked:/)
     await shot(cp, 'portal-requests-phone')
     await cp.goto(`${baseUrl()}/portal`)
+    await waitForHydration(cp)
     await cp.getByTestId('upcoming-visits').waitFor()
     expect(await cp.getByTestId('upcoming-visits').textContent()).toMatch(/Repair/)
     await customer.close()

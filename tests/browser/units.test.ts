@@ -2,7 +2,7 @@ import { mkdirSync } from 'node:fs'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { api, demo, tokenFor, uniqueEmail, baseUrl } from '../helpers/api'
-import { launch, signInThroughForm, VIEWPORTS } from '../helpers/browser'
+import { launch, signInThroughForm, VIEWPORTS, waitForHydration } from '../helpers/browser'
 import { visitForTessToday } from '../helpers/visits'
 import { waitForMail } from '../helpers/mail'
 import { dosingSuggestions } from '../../shared/utils/water/dosing'
@@ -102,6 +102,7 @@ for (const system of ['us', 'metric'] as const) {
         await signInThroughForm(page, demo.tess)
         await page.waitForURL(url => url.pathname === '/today')
         await page.goto(`${baseUrl()}/visits/${v.visitId}`)
+        await waitForHydration(page)
         if (viewport === 'phone') {
           await page.getByRole('button', { name: /Start the visit/ }).click()
           await page.getByTestId('visit-status').filter({ hasText: 'Under way' }).waitFor()

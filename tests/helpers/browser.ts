@@ -82,3 +82,14 @@ export async function seriousA11yViolations(page: Page) {
   return violations.filter(v => v.impact === 'serious' || v.impact === 'critical')
     .map(v => `${v.impact}: ${v.id} — ${v.help} (${v.nodes.slice(0, 3).map(n => String(n.target[0])).join(', ')})`)
 }
+
+/**
+ * Until Nuxt has hydrated the page: a click before that reaches a button with no handler yet and
+ * is lost (on a loaded machine, a freshly loaded page can take seconds).
+ */
+export async function waitForHydration(page: Page) {
+  await page.waitForFunction(() => {
+    const app = (document.querySelector('#__nuxt') as { __vue_app__?: { $nuxt?: { isHydrating?: boolean } } } | null)?.__vue_app__
+    return app?.$nuxt?.isHydrating === false
+  }, undefined, { timeout: 30_000 })
+}
