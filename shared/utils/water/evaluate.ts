@@ -117,8 +117,9 @@ export function classifyParameterValue(parameter: Parameter, value: number, rang
   const label = PARAMETER_CATALOGUE[parameter].label
   const head = `${label} ${withUnit(parameter, value, system)}`
   const crossed = (status: ReadingStatus, limit: number, dir: 'low' | 'high'): ParameterEvaluation => {
-    const text = w[dir]?.[status === 'act' ? 1 : 0]
-      ?? `${dir === 'low' ? 'below' : 'above'} the range set for this feature${status === 'act' ? '' : ''}`
+    const words = w[dir]?.[status === 'act' ? 1 : 0] ?? `${dir === 'low' ? 'below' : 'above'} the range set for this feature`
+    // Act-level reasons say so; watch-level reasons never use act words (see ACT_WORDS).
+    const text = status === 'act' ? `${words} — ${ACT_TODAY}` : words
     return { parameter, value, status, limit, reason: `${head} is ${dir === 'low' ? 'below' : 'above'} ${bare(parameter, limit, system)}: ${text}` }
   }
   if (range.actBelow !== undefined && value < range.actBelow) return crossed('act', range.actBelow, 'low')

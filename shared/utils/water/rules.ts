@@ -99,3 +99,9 @@ export const WATER_CHANGE_CAUTIONS = {
   dechlorinate: 'Dechlorinate the new water and match its temperature to the pond water',
   cause: 'Retest after each change and find the cause (overfeeding, too many fish, or a filter that is not keeping up)',
 } as const
+
+/** "Call us today on 555-0142." with the company's number; without one, a form that promises none. */
+export function callUsToday(phone?: string | null): string {
+  const p = phone?.trim()
+  return p ? `Call us today on ${p}.` : 'Call your pond company today.'
+}
