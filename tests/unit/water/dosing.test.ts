@@ -249,23 +249,42 @@ describe('dosingSuggestions', () => {
     expect(out[0]!.amount).toBeCloseTo(bicarbonateForKH(1000, mgLCaCO3ToDkh(30), mgLCaCO3ToDkh(60)), 9)
   })
 
-  it('total ammonia over its limit → partial water change to the TAN target', () => {
+  it('total ammonia over its limit → a first-step water change of about a third, with the whole job in the text and inputs', () => {
     const reading: WaterReading = { totalAmmoniaMgL: 1.0, pH: 7.5, temperatureC: 20 }
     const out = dosingSuggestions({ reading, volumeL: 8000, ranges: koi })
     const s = out.find(x => x.key === 'water_change_ammonia')!
     expect(s).toBeDefined()
-    expect(s.fraction).toBeCloseTo(0.9, 9) // 1 − 0.1/1.0 (koi target 0.1 mg/L as N)
-    expect(s.amount).toBeCloseTo(7200, 6)
+    // whole job: 1 − 0.1/1.0 = 90 % (koi target 0.1 mg/L as N); ⅔⁶ = 0.088 ≤ 0.1 < ⅔⁵ → 6 changes (C: dilution)
+    expect(s.inputs.totalFraction).toBeCloseTo(0.9, 9)
+    expect(s.inputs.steps).toBe(6)
+    // the headline is the first step: a third (MAX_WATER_CHANGE_FRACTION, common practice)
+    expect(s.fraction).toBeCloseTo(1 / 3, 12)
+    expect(s.amount).toBeCloseTo(8000 / 3, 6)
     expect(s.unit).toBe('L')
+    expect(s.amountText).toBe('2,670 L')
+    expect(s.priority).toBe(2)
+    expect(s.reason).toBe('Total ammonia 1 mg/L as N is above 0.25: as a first step, change about a third of the water (2,670 L); about 6 changes in all, retesting between them, to bring total ammonia down to 0.1 mg/L as N')
+    expect(s.reason).not.toMatch(/90 %/)
     expect(s.cautions.join(' ')).toMatch(/[Dd]echlorinate the new water and match its temperature/)
-    expect(s.cautions.join(' ')).toMatch(/no more than about a third.*about 6 changes of up to 2670 L/)
     common(s)
+  })
+
+  it('a small water change is offered whole, as one step', () => {
+    // TAN 0.3 → 0.1 needs 1 − 0.1/0.3 = 0.667 > ⅓, but TAN 0.3 with a target of 0.25: 1 − 0.25/0.3 = 16.7 %
+    const ranges = { ...koi, totalAmmoniaMgL: { watchAbove: 0.28, target: 0.25, source: 'x', sourceKind: 'common practice' as const } }
+    const s = dosingSuggestions({ reading: { totalAmmoniaMgL: 0.3 }, volumeL: 6000, ranges })[0]!
+    expect(s.fraction).toBeCloseTo(1 - 0.25 / 0.3, 12)
+    expect(s.amount).toBeCloseTo(1000, 6)
+    expect(s.inputs.steps).toBe(1)
+    expect(s.reason).toMatch(/change about 17 % of the water \(1,000 L\); one change should do it; retest after it/)
   })
 
   it('ammonia reported as NH3 gives the same water change as the same water reported as N', () => {
     const asN = dosingSuggestions({ reading: { totalAmmoniaMgL: 0.8, pH: 7.2, temperatureC: 15 }, volumeL: 3000, ranges: koi })
     const asNH3 = dosingSuggestions({ reading: { totalAmmoniaMgL: 0.8 * 17.031 / 14.007, ammoniaBasis: 'NH3', pH: 7.2, temperatureC: 15 }, volumeL: 3000, ranges: koi })
-    expect(asNH3[0]!.amount).toBeCloseTo(asN[0]!.amount!, 6)
+    const wc = (l: DosingSuggestion[]) => l.find(x => x.key === 'water_change_ammonia')!
+    expect(wc(asNH3).inputs.totalFraction).toBeCloseTo(wc(asN).inputs.totalFraction as number, 9)
+    expect(wc(asNH3).inputs.targetTanMgLasN).toBeCloseTo(wc(asN).inputs.targetTanMgLasN as number, 9)
   })
 
   it('NH3 over its limit at high pH, even with TAN under its own limit, aims low enough for NH3', () => {
@@ -277,29 +296,43 @@ describe('dosingSuggestions', () => {
     expect(target).toBeLessThan(0.1)
     // at the target, NH3 is half the 0.02 mg/L watch limit
     expect(unionizedAmmonia(target, 8.8, 28) * 17.031 / 14.007).toBeCloseTo(0.01, 9)
-    expect(s.fraction).toBeCloseTo(1 - target / 0.2, 9)
+    expect(s.inputs.totalFraction).toBeCloseTo(1 - target / 0.2, 9)
+    expect(s.fraction).toBeCloseTo(Math.min(1 / 3, 1 - target / 0.2), 9)
   })
 
   it('nitrite over limit with fish and no salt → water change and pond salt to chloride ≥ 10 × nitrite (SRAC 462)', () => {
     const reading: WaterReading = { nitriteMgL: 0.5, saltGL: 0 }
     const out = dosingSuggestions({ reading, volumeL: 10_000, ranges: koi, fish: true })
-    expect(out.map(s => s.key)).toEqual(['water_change_nitrite', 'salt_for_nitrite'])
+    expect(out.map(s => s.key)).toEqual(['water_change_nitrite', 'salt_for_nitrite', 'feeding'])
     const wc = out[0]!
-    expect(wc.fraction).toBeCloseTo(1 - 0.05 / 0.5, 9) // target = watchAbove/2
+    expect(wc.inputs.totalFraction).toBeCloseTo(1 - 0.05 / 0.5, 9) // target = watchAbove/2
+    expect(wc.fraction).toBeCloseTo(1 / 3, 9)
     const salt = out[1]!
     expect(salt.product).toBe('pond salt (sodium chloride)')
     expect(salt.unit).toBe('kg')
     // 5 mg/L chloride needs 5 / 0.6066 = 8.243 mg/L NaCl; × 10 000 L = 82.4 g
     expect(salt.amount).toBeCloseTo((5 / 0.60661) * 10_000 / 1e6, 4)
     expect(salt.inputs.targetChlorideMgL).toBeCloseTo(5, 12)
-    expect(salt.cautions.join(' ')).toMatch(/harms many plants and some fish/)
+    expect(salt.amountText).toBe('82 g')
+    expect(salt.cautions.join(' ')).toMatch(/harms many plants/)
+    expect(salt.cautions.join(' ')).toMatch(/Some fish do not tolerate salt/)
+    expect(salt.cautions.join(' ')).toMatch(/does not evaporate/)
+    expect(salt.cautions.join(' ')).not.toMatch(/assumes/)
     common(salt)
   })
 
-  it('no salt without fish, or when salt is not measured, or when chloride is already enough', () => {
-    expect(dosingSuggestions({ reading: { nitriteMgL: 0.5, saltGL: 0 }, volumeL: 1000, ranges: koi }).map(s => s.key)).toEqual(['water_change_nitrite'])
-    expect(dosingSuggestions({ reading: { nitriteMgL: 0.5 }, volumeL: 1000, ranges: koi, fish: true }).map(s => s.key)).toEqual(['water_change_nitrite'])
-    expect(dosingSuggestions({ reading: { nitriteMgL: 0.5, saltGL: 1 }, volumeL: 1000, ranges: koi, fish: true }).map(s => s.key)).toEqual(['water_change_nitrite'])
+  it('no salt without fish, or when chloride is already enough', () => {
+    expect(dosingSuggestions({ reading: { nitriteMgL: 0.5, saltGL: 0 }, volumeL: 1000, ranges: koi }).map(s => s.key)).toEqual(['water_change_nitrite', 'feeding'])
+    expect(dosingSuggestions({ reading: { nitriteMgL: 0.5, saltGL: 1 }, volumeL: 1000, ranges: koi, fish: true }).map(s => s.key)).toEqual(['water_change_nitrite', 'feeding'])
+  })
+
+  it('salt not measured: the amount assumes no salt in the pond, and says to test salt first', () => {
+    const out = dosingSuggestions({ reading: { nitriteMgL: 0.5 }, volumeL: 1000, ranges: koi, fish: true })
+    const salt = out.find(s => s.key === 'salt_for_nitrite')!
+    expect(salt.amount).toBeCloseTo((5 / 0.60661) * 1000 / 1e6, 5) // as from 0 g/L (SRAC 462: 10 × 0.5 = 5 mg/L chloride)
+    expect(salt.inputs).toMatchObject({ currentSaltGL: 0, saltMeasured: 'no' })
+    expect(salt.reason).toMatch(/no salt measured/)
+    expect(salt.cautions[0]).toBe('Test the salt level first: this amount assumes there is no salt in the pond now')
   })
 
   it('top-up with a label rate → dechlorinator dose for the top-up volume', () => {

@@ -6,12 +6,14 @@ import * as ammonia from '../../../shared/utils/water/ammonia'
 import * as dosing from '../../../shared/utils/water/dosing'
 import * as errors from '../../../shared/utils/water/errors'
 import * as evaluate from '../../../shared/utils/water/evaluate'
+import * as format from '../../../shared/utils/water/format'
 import * as oxygen from '../../../shared/utils/water/oxygen'
+import * as parameters from '../../../shared/utils/water/parameters'
 import * as profiles from '../../../shared/utils/water/profiles'
 import * as units from '../../../shared/utils/water/units'
 import * as volume from '../../../shared/utils/water/volume'
 
-const modules = { ammonia, dosing, errors, evaluate, oxygen, profiles, units, volume }
+const modules = { ammonia, dosing, errors, evaluate, format, oxygen, parameters, profiles, units, volume }
 
 describe('public entry point shared/utils/water-chemistry', () => {
   it('only re-exports the water modules', () => {

@@ -2,7 +2,7 @@ import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
 import type { Parameter, ReadingStatus, WaterReading } from '../../../shared/types/water'
 import {
-  DEFAULT_PROFILES, evaluateReading, nitrogenToAmmonia, oxygenSaturationMgL, unionizedAmmoniaFraction, WaterInputError,
+  ACT_WORDS, classifyParameterValue, DEFAULT_PROFILES, evaluateReading, nitrogenToAmmonia, oxygenSaturationMgL, unionizedAmmoniaFraction, WaterInputError,
   worstReadingStatus,
 } from '../../../shared/utils/water-chemistry'
 
@@ -57,7 +57,8 @@ describe('evaluateReading: statuses against the koi-pond defaults (table-driven)
 describe('plain-words reasons', () => {
   it('ok, watch and act read as one line', () => {
     expect(statusOf({ pH: 7.6 }, 'pH')!.reason).toBe('pH 7.6 is within 7.0–8.5')
-    expect(statusOf({ pH: 6.2 }, 'pH')!.reason).toBe('pH 6.2 is below 6.5: the water is turning acidic — check KH')
+    expect(statusOf({ pH: 6.2 }, 'pH')!.reason).toBe('pH 6.2 is below 6.5: the water is turning acidic — check KH — act today')
+    expect(statusOf({ pH: 6.8 }, 'pH')!.reason).toBe('pH 6.8 is below 7.0: pH is drifting down — check KH')
     expect(statusOf({ chlorineMgL: 0 }, 'chlorineMgL')!.reason).toBe('Chlorine: none detected')
     expect(statusOf({ nitriteMgL: 0.05 }, 'nitriteMgL')!.reason).toBe('Nitrite 0.05 mg/L is at or below 0.1')
   })
@@ -67,6 +68,56 @@ describe('plain-words reasons', () => {
     expect(e.status).toBe('act')
     expect(e.limit).toBe(0.05)
     expect(e.reason).toMatch(/^Un-ionized ammonia 0\.09\d* mg\/L is above 0\.05: harmful to fish — act today$/)
+  })
+})
+
+describe('reasons in the company\'s units (NIST Handbook 44: °F = °C × 9/5 + 32)', () => {
+  const reason = (reading: WaterReading, p: Parameter, unitSystem: 'us' | 'metric', ranges = koi) =>
+    evaluateReading(reading, ranges, { unitSystem }).parameters.find(e => e.parameter === p)!.reason
+  it('temperature and its limit in °F for a US company, °C for a metric one', () => {
+    expect(reason({ temperatureC: 29 }, 'temperatureC', 'us')).toBe('Water temperature 84.2 °F is above 80.6: warm water holds less oxygen — add aeration and shade')
+    expect(reason({ temperatureC: 29 }, 'temperatureC', 'metric')).toBe('Water temperature 29 °C is above 27: warm water holds less oxygen — add aeration and shade')
+    expect(reason({ temperatureC: 20 }, 'temperatureC', 'us')).toBe('Water temperature 68 °F is at or below 80.6')
+    expect(reason({ temperatureC: 32 }, 'temperatureC', 'us')).toBe('Water temperature 89.6 °F is above 87.8: too warm for fish — aerate, shade and feed less — act today')
+  })
+  it('salt in percent for a US company, g/L for a metric one', () => {
+    expect(reason({ saltGL: 4 }, 'saltGL', 'us')).toBe('Salt 0.4 % is above 0.3: more salt than a standing pond level — hard on plants')
+    expect(reason({ saltGL: 4 }, 'saltGL', 'metric')).toBe('Salt 4 g/L is above 3: more salt than a standing pond level — hard on plants')
+  })
+  it('the SRAC 462 chloride note in either system (a concentration reads the same)', () => {
+    for (const unitSystem of ['us', 'metric'] as const) {
+      expect(reason({ nitriteMgL: 0.08, saltGL: 0 }, 'nitriteMgL', unitSystem)).toBe('Nitrite 0.08 mg/L with chloride 0 mg/L is below 10 × nitrite, so nitrite is more toxic to fish — add pond salt or change some water (SRAC 462)')
+    }
+  })
+  it('a range without words of its own still says where the value is, and act says so', () => {
+    const ranges = { ghMgL: { watchBelow: 50, actBelow: 20, source: 'x', sourceKind: 'common practice' as const } }
+    expect(reason({ ghMgL: 40 }, 'ghMgL', 'us', ranges)).toBe('GH 40 mg/L is below 50: below the range set for this feature')
+    expect(reason({ ghMgL: 10 }, 'ghMgL', 'us', ranges)).toBe('GH 10 mg/L is below 20: below the range set for this feature — act today')
+    expect(reason({ ghMgL: 60 }, 'ghMgL', 'us', { ghMgL: { source: 'x', sourceKind: 'common practice' } })).toBe('GH 60 mg/L: no limits set')
+    expect(reason({ ghMgL: 60 }, 'ghMgL', 'us', { ghMgL: { watchBelow: 50, source: 'x', sourceKind: 'common practice' } })).toBe('GH 60 mg/L is at or above 50')
+  })
+  it('watch words for watch, act words for act, for every parameter the profiles rate', () => {
+    const act = /act today$/
+    for (const profile of Object.values(DEFAULT_PROFILES)) {
+      for (const [p, r] of Object.entries(profile.ranges) as Array<[Parameter, NonNullable<(typeof koi)[Parameter]>]>) {
+        const probe = (v: number) => classifyParameterValue(p, v, r, 'us')
+        if (r.actAbove !== undefined) expect(probe(r.actAbove + 1).reason).toMatch(act)
+        if (r.actBelow !== undefined && r.actBelow > 0) expect(probe(r.actBelow - 0.01).reason).toMatch(act)
+        if (r.watchAbove !== undefined && (r.actAbove === undefined || r.actAbove > r.watchAbove + 1e-6)) {
+          const v = r.actAbove === undefined ? r.watchAbove + 1 : (r.watchAbove + r.actAbove) / 2
+          expect(probe(v).status).toBe('watch')
+          expect(probe(v).reason).not.toMatch(ACT_WORDS)
+        }
+        if (r.watchBelow !== undefined && (r.actBelow === undefined || r.actBelow < r.watchBelow)) {
+          const v = r.actBelow === undefined ? r.watchBelow / 2 : (r.watchBelow + r.actBelow) / 2
+          expect(probe(v).status).toBe('watch')
+          expect(probe(v).reason).not.toMatch(ACT_WORDS)
+        }
+      }
+    }
+  })
+  it('classifyParameterValue defaults to metric', () => {
+    expect(classifyParameterValue('temperatureC', 29, koi.temperatureC!).reason).toMatch(/^Water temperature 29 °C/)
   })
 })
 
