@@ -126,42 +126,48 @@ export function adviceFor(
     return { ...base, text: `${word} ${state}: ${action}; ${retest}.` }
   })
 
+  // Un-ionized ammonia at or above its watch level is a watch-level fact even without a line of its own.
+  const nh3High = nh3 !== null && nh3 >= nh3Watch
+  const nh3Status: ReadingStatus[] = nh3High ? ['watch'] : []
   // Aeration first when ammonia is high in warm water (low oxygen has its own line above).
   const tempLine = byParameter.get('temperatureC')
-  if (temp !== null && temp >= WARM_WATER_C && (ammoniaOff || (nh3 !== null && nh3 >= nh3Watch))) {
-    const status = worstOf([byParameter.get('totalAmmoniaMgL'), nh3Line].filter(isDefined).filter(isOff))
+  if (temp !== null && temp >= WARM_WATER_C && (ammoniaOff || nh3High)) {
+    const ammonia = [byParameter.get('totalAmmoniaMgL'), nh3Line].filter(isDefined)
     lines.push({
-      key: 'aeration', parameter: tempLine ? 'temperatureC' : 'nh3MgL', status, trend: null, priority: PRIORITY.oxygen,
+      key: 'aeration', parameter: tempLine ? 'temperatureC' : 'nh3MgL', status: worstOf([...ammonia, ...nh3Status.map(status => ({ status }))]),
+      trend: null, priority: PRIORITY.oxygen,
       text: `Keep the water moving first: run the waterfall or an air pump day and night. Warm water (${formatQuantity('temperature', temp, system)}) holds less oxygen, and fish need more of it while ammonia is high.`,
     })
   }
   // Feeding: ammonia or nitrite above the watch level, or cold water (common practice).
   const feedingFor = [byParameter.get('totalAmmoniaMgL'), nh3Line, nitriteOff].filter(isDefined).filter(p => isOff(p) && isHigh(p))
+  const toxic = feedingFor.length > 0 || nh3High
   const cold = temp !== null && temp < FEED_LIGHTLY_BELOW_C
-  if (feedingFor.length > 0 || cold || (nh3 !== null && nh3 >= nh3Watch)) {
+  if (toxic || cold) {
     const about = (c: number) => formatQuantity('temperature', c, system, { digits: 0 })
     const text = temp !== null && temp < STOP_FEEDING_BELOW_C
       ? `Stop feeding until the water warms up: below about ${about(STOP_FEEDING_BELOW_C)} fish cannot digest food.`
-      : feedingFor.length > 0 || (nh3 !== null && nh3 >= nh3Watch)
+      : toxic
         ? 'Feed lightly, only what the fish eat in a few minutes, until ammonia and nitrite are back in range; skip a day or two if they stay high.'
         : `Feed lightly, a few times a week: below about ${about(FEED_LIGHTLY_BELOW_C)} fish eat and digest little.`
     lines.push({
-      key: 'feeding', parameter: feedingFor[0]?.parameter ?? (tempLine ? 'temperatureC' : 'nh3MgL'),
-      status: feedingFor.length > 0 ? worstOf(feedingFor) : 'ok', trend: null,
-      priority: feedingFor.length > 0 ? PRIORITY.ammonia : PRIORITY.other, text,
+      key: 'feeding', parameter: feedingFor[0]?.parameter ?? (nh3High || !tempLine ? 'nh3MgL' : 'temperatureC'),
+      status: worstOf([...feedingFor, ...nh3Status.map(status => ({ status }))]), trend: null,
+      priority: toxic ? PRIORITY.ammonia : PRIORITY.other, text,
     })
   }
+
   const order = (l: AdviceLine) => (l.status === 'ok' ? 10 : 0) + l.priority
   const sorted = lines
     .map((l, i) => ({ l, i }))
     .sort((a, b) => order(a.l) - order(b.l) || RANK[b.l.status] - RANK[a.l.status] || a.i - b.i)
     .map(x => x.l)
-  const worst = worstOf(evaluation)
+  const worst = worstOf(sorted)
   // "Call us today" once, on the first act line (with the phone number when there is one).
   const firstAct = sorted.findIndex(l => l.status === 'act')
   if (firstAct >= 0) sorted[firstAct] = { ...sorted[firstAct]!, text: `${callUs}${sorted[firstAct]!.text}` }
   const first = sorted.find(l => l.status === worst && worst !== 'ok')
-  const headline = first ? first.text : evaluation.length ? 'Everything we tested is in range.' : 'No water test yet.'
+  const headline = first ? first.text : evaluation.length ? 'Everything we tested is in range.' : lines.length ? sorted[0]!.text : 'No water test yet.'
   return { overall: worst, headline, lines: sorted, callUs: worst === 'act' }
 }
 

@@ -67,12 +67,13 @@ describe('plain-words advice', () => {
     const a = adviceFor([ev({ parameter: 'khMgL', value: 40, status: 'watch', limit: 60 })], { khMgL: 41 }, null)
     expect(a.lines[0]!.text).toMatch(/^KH \(buffering\) is low: add a KH buffer/)
     const held = adviceFor([ev({ parameter: 'khMgL', value: 40, status: 'watch', limit: 60 })], {}, null, { computed: { nh3MgL: 0.03, nh3AsNMgL: null, nh3Fraction: null, doSaturationMgL: null, doSaturationPct: null } })
-    expect(held.lines[0]!.text).toMatch(/^KH \(buffering\) is low: do not add a KH buffer yet.*KH comes once ammonia is down/)
+    expect(held.lines.map(l => l.key)).toEqual(['feeding', 'khMgL'])
+    expect(held.lines[1]!.text).toMatch(/^KH \(buffering\) is low: do not add a KH buffer yet.*KH comes once ammonia is down/)
     const pH = adviceFor([ev({ parameter: 'pH', value: 6.8, status: 'watch', limit: 7 }), ev({ parameter: 'nh3MgL', value: 0.03, status: 'watch', limit: 0.02 })], {}, null)
     expect(pH.lines.find(l => l.key === 'pH')!.text).toMatch(/do not add pH or KH products while ammonia is high/)
     // the feature's own watch level counts
     const own = adviceFor([ev({ parameter: 'khMgL', value: 40, status: 'watch', limit: 60 })], {}, null, { nh3WatchMgL: 0.05, computed: { nh3MgL: 0.03, nh3AsNMgL: null, nh3Fraction: null, doSaturationMgL: null, doSaturationPct: null } })
-    expect(own.lines[0]!.text).toMatch(/add a KH buffer as/)
+    expect(own.lines.map(l => l.text)).toEqual(['KH (buffering) is low: add a KH buffer as the dosing helper works out; we will retest at the next visit.'])
   })
 
   it('aeration first when ammonia is high in warm water (common practice: about 25 °C / 77 °F and up)', () => {
@@ -101,5 +102,90 @@ describe('plain-words advice', () => {
     expect(adviceFor([], {}, null).headline).toBe('No water test yet.')
     const a = adviceFor([ev({ parameter: 'temperatureC', value: 3, status: 'ok' }), ev({ parameter: 'nitriteMgL', value: 0.2, status: 'watch', limit: 0.1 })], {}, '2027-01-05', { unitSystem: 'us' })
     expect(foreignUnitsIn(a.lines.map(l => l.text), 'us')).toEqual([])
+  })
+})
+
+describe('what a customer can do for each result (the product\'s advice, common practice, no source)', () => {
+  const line = (parameter: ParameterEvaluation['parameter'], value: number, limit: number) =>
+    adviceFor([ev({ parameter, value, status: 'watch', limit })], {}, null).lines.find(l => l.key === parameter)!.text
+  it.each([
+    ['totalAmmoniaMgL', 0.5, 0.25, /^Ammonia is high: add beneficial bacteria and cut back feeding/],
+    ['nh3MgL', 0.03, 0.02, /^Free ammonia is high: this is the form of ammonia that harms fish/],
+    ['nitriteMgL', 0.2, 0.1, /^Nitrite is high: add beneficial bacteria and cut back feeding/],
+    ['nitrateMgL', 30, 20, /^Nitrate is high: change about a tenth of the water with dechlorinated water/],
+    ['phosphateMgL', 1, 0.5, /^Phosphate is high: feed less and remove dead leaves/],
+    ['pH', 8.7, 8.5, /^pH is high: do not add pH products yourself;/],
+    ['pH', 6.8, 7, /^pH is low: do not add pH products yourself; a KH buffer steadies pH/],
+    ['khMgL', 60, 100, /^KH \(buffering\) is low: add a KH buffer as the dosing helper works out/],
+    ['dissolvedOxygenMgL', 5.5, 6, /^Oxygen is low: run the waterfall or an air pump day and night/],
+    ['doSaturationPct', 60, 70, /^Oxygen is low: run the waterfall or an air pump day and night/],
+    ['chlorineMgL', 0.1, 0, /^Chlorine is high: add dechlorinator for the whole pond/],
+    ['temperatureC', 28, 27, /^Water temperature is high: shade part of the pond and keep the water moving/],
+    ['temperatureC', 3, 4, /^Water temperature is low: feed less: fish eat little in cold water/],
+    ['saltGL', 4, 3, /^Salt is high: add no more salt; only water changes lower it/],
+    ['ghMgL', 400, 300, /^Hardness \(GH\) is high: keep an eye on the fish/],
+  ] as const)('%s %d (limit %d)', (parameter, value, limit, want) => {
+    expect(line(parameter, value, limit)).toMatch(want)
+  })
+  it('a trend replaces high or low, and an ok result says its trend', () => {
+    const a = adviceFor([ev({ parameter: 'nitrateMgL', value: 30, status: 'watch', limit: 20 }), ev({ parameter: 'pH', value: 7.0, status: 'ok' })], { nitrateMgL: 40, pH: 7.8 }, null)
+    expect(a.lines.map(l => l.text)).toEqual([
+      'Nitrate is falling: change about a tenth of the water with dechlorinated water; we will retest at the next visit.',
+      'pH is fine (falling).',
+    ])
+    expect(a.lines.map(l => l.trend)).toEqual(['falling', 'falling'])
+    expect(adviceFor([ev({ parameter: 'pH', value: 7.9, status: 'ok' })], { pH: 7.0 }, null).lines[0]!.text).toBe('pH is fine (rising).')
+    expect(adviceFor([ev({ parameter: 'pH', value: 7.5, status: 'ok' })], { pH: 7.5 }, null).lines[0]!.text).toBe('pH is fine.')
+    expect(trendOf(10, 9)).toBe('rising') // exactly 10 % is no longer steady
+  })
+  it('order: by priority, then act before watch, then as tested; results in range last', () => {
+    const a = adviceFor([
+      ev({ parameter: 'pH', value: 7.5, status: 'ok' }),
+      ev({ parameter: 'nitrateMgL', value: 30, status: 'watch', limit: 20 }),
+      ev({ parameter: 'nitriteMgL', value: 0.2, status: 'watch', limit: 0.1 }),
+      ev({ parameter: 'totalAmmoniaMgL', value: 2, status: 'act', limit: 1 }),
+      ev({ parameter: 'chlorineMgL', value: 0.1, status: 'act', limit: 0 }),
+      ev({ parameter: 'phosphateMgL', value: 1, status: 'watch', limit: 0.5 }),
+    ], {}, null)
+    expect(a.lines.map(l => l.key)).toEqual(['totalAmmoniaMgL', 'chlorineMgL', 'feeding', 'nitriteMgL', 'nitrateMgL', 'phosphateMgL', 'pH'])
+    expect(a.lines.find(l => l.key === 'feeding')).toMatchObject({ status: 'act', priority: 2, parameter: 'totalAmmoniaMgL' })
+  })
+  it('un-ionized ammonia from the computed values alone (no line of its own) counts for aeration, feeding and KH', () => {
+    const computed = (nh3MgL: number) => ({ nh3MgL, nh3AsNMgL: null, nh3Fraction: null, doSaturationMgL: null, doSaturationPct: null })
+    const warm = [ev({ parameter: 'temperatureC', value: 25, status: 'ok' }), ev({ parameter: 'khMgL', value: 60, status: 'watch', limit: 100 })]
+    const high = adviceFor(warm, {}, null, { computed: computed(0.02) })
+    expect(high.lines.map(l => l.key)).toEqual(['aeration', 'feeding', 'khMgL', 'temperatureC'])
+    expect(high.lines[0]).toMatchObject({ status: 'watch', parameter: 'temperatureC' })
+    expect(high.lines[1]).toMatchObject({ status: 'watch', priority: 2, parameter: 'nh3MgL' })
+    expect(high.overall).toBe('watch')
+    expect(high.lines[1]!.text).toMatch(/until ammonia and nitrite are back in range/)
+    expect(high.lines[2]!.text).toMatch(/do not add a KH buffer yet/)
+    const low = adviceFor(warm, {}, null, { computed: computed(0.019) })
+    expect(low.lines.map(l => l.key)).toEqual(['khMgL', 'temperatureC'])
+    // without a temperature line, the extra lines point at the ammonia
+    const noTemp = adviceFor([], {}, null, { computed: computed(0.05) })
+    expect(noTemp.lines).toEqual([expect.objectContaining({ key: 'feeding', parameter: 'nh3MgL', status: 'watch' })])
+    expect(noTemp.headline).toBe(noTemp.lines[0]!.text)
+    expect(adviceFor([ev({ parameter: 'temperatureC', value: 8, status: 'ok' })], {}, null).lines[1]).toMatchObject({ key: 'feeding', parameter: 'temperatureC', status: 'ok' })
+  })
+  it('warm water alone, or results in range, call for neither aeration nor feeding', () => {
+    const fine = adviceFor([ev({ parameter: 'temperatureC', value: 26, status: 'ok' }), ev({ parameter: 'totalAmmoniaMgL', value: 0.1, status: 'ok' }), ev({ parameter: 'nitriteMgL', value: 0, status: 'ok' })], {}, null)
+    expect(fine.lines.map(l => l.key)).toEqual(['temperatureC', 'totalAmmoniaMgL', 'nitriteMgL'])
+    const cool = adviceFor([ev({ parameter: 'temperatureC', value: 24.9, status: 'ok' }), ev({ parameter: 'totalAmmoniaMgL', value: 2, status: 'act', limit: 1 })], {}, null)
+    expect(cool.lines.map(l => l.key)).not.toContain('aeration')
+    const warm = adviceFor([ev({ parameter: 'temperatureC', value: 25, status: 'ok' }), ev({ parameter: 'totalAmmoniaMgL', value: 0.5, status: 'watch', limit: 0.25 })], {}, null)
+    expect(warm.lines[0]).toMatchObject({ key: 'aeration', status: 'watch', parameter: 'temperatureC' })
+  })
+  it('cold-water boundaries (common practice): 10 °C is not cold, 5 °C is cold but not too cold to feed lightly', () => {
+    const feeding = (c: number) => adviceFor([ev({ parameter: 'temperatureC', value: c, status: 'ok' })], {}, null).lines.find(l => l.key === 'feeding')
+    expect(feeding(10)).toBeUndefined()
+    expect(feeding(9.9)!.text).toMatch(/^Feed lightly, a few times a week/)
+    expect(feeding(5)!.text).toMatch(/^Feed lightly, a few times a week/)
+    expect(feeding(4.9)!.text).toMatch(/^Stop feeding/)
+    expect(feeding(5)).toMatchObject({ status: 'ok', priority: 5 })
+  })
+  it('an un-ionized ammonia line over the feature\'s own watch level holds KH back even under the 0.02 default', () => {
+    const a = adviceFor([ev({ parameter: 'nh3MgL', value: 0.015, status: 'watch', limit: 0.01 }), ev({ parameter: 'khMgL', value: 60, status: 'watch', limit: 100 })], {}, null)
+    expect(a.lines.find(l => l.key === 'khMgL')!.text).toMatch(/do not add a KH buffer yet/)
   })
 })
