@@ -256,36 +256,37 @@ function waterChange(w: WaterChangeSpec): DosingSuggestion | null {
 function waterState(input: DosingSuggestionsInput, m: Measured, tanN: number | null): WaterState & { nh3Fraction: number | null } {
   const { ranges } = input
   const f = tanN !== null && m.pH !== undefined && m.temperatureC !== undefined ? unionizedAmmoniaFraction(m.pH, m.temperatureC) : null
-  const nh3 = f === null || tanN === null ? null : tanN * f * (MOLAR_MASS.NH3 / MOLAR_MASS.N)
-  const over = (v: number | null | undefined, limit: number | undefined) => v !== null && v !== undefined && limit !== undefined && v > limit
+  const nh3 = f === null ? null : tanN! * f * (MOLAR_MASS.NH3 / MOLAR_MASS.N)
+  const over = (v: number | null | undefined, limit: number | undefined) => v != null && limit !== undefined && v > limit
   const pressure = input.pressureKPa === undefined ? undefined : checkPressureKPa(input.pressureKPa)
   const sat = m.dissolvedOxygenMgL !== undefined && m.temperatureC !== undefined ? oxygenPercentSaturation(m.dissolvedOxygenMgL, m.temperatureC, pressure) : null
   return {
     temperatureC: m.temperatureC ?? null,
     dissolvedOxygenMgL: m.dissolvedOxygenMgL ?? null,
-    doLowMgL: lowerLimit(ranges?.dissolvedOxygenMgL) ?? null,
+    doLowMgL: lowerLimit(ranges.dissolvedOxygenMgL) ?? null,
     doSaturationPct: sat,
-    doSaturationLowPct: lowerLimit(ranges?.doSaturationPct) ?? null,
+    doSaturationLowPct: lowerLimit(ranges.doSaturationPct) ?? null,
     nh3MgL: nh3,
     nh3WatchMgL: nh3WatchLevel(ranges),
     nh3Fraction: f,
-    ammoniaHigh: over(tanN, upperLimit(ranges?.totalAmmoniaMgL)),
-    nitriteHigh: over(m.nitriteMgL, upperLimit(ranges?.nitriteMgL)),
-    ammoniaOrNitriteAct: over(tanN, ranges?.totalAmmoniaMgL?.actAbove) || over(nh3, ranges?.nh3MgL?.actAbove) || over(m.nitriteMgL, ranges?.nitriteMgL?.actAbove),
+    ammoniaHigh: over(tanN, upperLimit(ranges.totalAmmoniaMgL)),
+    nitriteHigh: over(m.nitriteMgL, upperLimit(ranges.nitriteMgL)),
+    ammoniaOrNitriteAct: over(tanN, ranges.totalAmmoniaMgL?.actAbove) || over(nh3, ranges.nh3MgL?.actAbove) || over(m.nitriteMgL, ranges.nitriteMgL?.actAbove),
   }
 }
 
-function ammoniaChange(input: DosingSuggestionsInput, w: ReturnType<typeof waterState>, tanN: number, m: Measured, system: UnitSystem): DosingSuggestion | null {
-  const tanR = input.ranges?.totalAmmoniaMgL
-  const nh3R = input.ranges?.nh3MgL
+function ammoniaChange(input: DosingSuggestionsInput, w: ReturnType<typeof waterState>, tanN: number | null, m: Measured, system: UnitSystem): DosingSuggestion | null {
+  const tanR = input.ranges.totalAmmoniaMgL
+  const nh3R = input.ranges.nh3MgL
   const tanLimit = upperLimit(tanR)
   const nh3Limit = upperLimit(nh3R)
   const f = w.nh3Fraction
   const nh3Over = w.nh3MgL !== null && nh3Limit !== undefined && w.nh3MgL > nh3Limit
-  if (!w.ammoniaHigh && !nh3Over) return null
+  // Either means total ammonia was measured (NH3 is computed from it).
+  if (tanN === null || (!w.ammoniaHigh && !nh3Over)) return null
   let target = tanR?.target ?? (tanLimit !== undefined ? tanLimit / 2 : undefined)
   // At high pH or temperature, aim lower so that NH3 ends at no more than half its limit.
-  if (f !== null && f > 0 && nh3Limit !== undefined) {
+  if (f !== null && nh3Limit !== undefined) {
     const forNh3 = ammoniaToNitrogen(nh3Limit / 2) / f
     target = target === undefined ? forNh3 : Math.min(target, forNh3)
   }
@@ -305,8 +306,8 @@ function ammoniaChange(input: DosingSuggestionsInput, w: ReturnType<typeof water
 function nitriteSuggestions(input: DosingSuggestionsInput, m: Measured, volumeL: number, system: UnitSystem, ammoniaChangeOffered: boolean): DosingSuggestion[] {
   const out: DosingSuggestion[] = []
   const nitrite = m.nitriteMgL
-  const nitriteR = input.ranges?.nitriteMgL
-  if (nitrite === undefined || nitrite <= 0) return out
+  const nitriteR = input.ranges.nitriteMgL
+  if (nitrite === undefined) return out
   const mgL = (v: number, bare = false) => formatParameter('nitriteMgL', v, system, { bare })
   const limit = upperLimit(nitriteR)
   if (limit !== undefined && nitrite > limit) {
@@ -327,7 +328,7 @@ function nitriteSuggestions(input: DosingSuggestionsInput, m: Measured, volumeL:
   if (chloride >= neededChloride) return out
   const targetSaltGL = saltGL + (neededChloride - chloride) / (1000 * CHLORIDE_MASS_FRACTION_NACL)
   const kg = saltToTarget(volumeL, saltGL, targetSaltGL)
-  const saltLimit = upperLimit(input.ranges?.saltGL)
+  const saltLimit = upperLimit(input.ranges.saltGL)
   const cl = (v: number) => formatQuantity('concentration', v, system, { digits: 0 })
   const cautions: string[] = []
   if (saltLimit !== undefined && targetSaltGL > saltLimit) {
@@ -354,7 +355,7 @@ function nitriteSuggestions(input: DosingSuggestionsInput, m: Measured, volumeL:
 }
 
 function khSuggestion(input: DosingSuggestionsInput, m: Measured, w: ReturnType<typeof waterState>, volumeL: number, system: UnitSystem): DosingSuggestion | null {
-  const khR = input.ranges?.khMgL
+  const khR = input.ranges.khMgL
   const khTarget = khR ? khR.target ?? khR.watchBelow ?? khR.actBelow : undefined
   if (m.khMgL === undefined || khTarget === undefined || m.khMgL >= khTarget) return null
   // No pH or KH raiser while un-ionized ammonia is at or above its watch level (Emerson et al. 1975).
@@ -423,6 +424,7 @@ export function dosingSuggestions(input: DosingSuggestionsInput): DosingSuggesti
   if (input === null || typeof input !== 'object') throw new WaterInputError('input', 'input is required')
   const system: UnitSystem = input.unitSystem ?? 'metric'
   const volumeL = positive(input.volumeL, 'volumeL', 'Volume')
+  if (input.ranges == null) input = { ...input, ranges: {} }
   const m = validateWaterReading(input.reading)
   const tanN = totalAmmoniaAsN(input.reading)
   const w = waterState(input, m, tanN)
@@ -430,7 +432,7 @@ export function dosingSuggestions(input: DosingSuggestionsInput): DosingSuggesti
   const out: DosingSuggestion[] = []
   const add = (s: DosingSuggestion | null) => { if (s) out.push(s) }
   add(aerationAdvice(w, system))
-  if (tanN !== null && tanN > 0) add(ammoniaChange({ ...input, volumeL }, w, tanN, m, system))
+  add(ammoniaChange({ ...input, volumeL }, w, tanN, m, system))
   out.push(...nitriteSuggestions(input, m, volumeL, system, out.some(s => s.key === 'water_change_ammonia')))
   add(feedingAdvice(w, system))
   add(khSuggestion(input, m, w, volumeL, system))
