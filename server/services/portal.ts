@@ -1,9 +1,8 @@
 import { and, asc, count, desc, eq, getTableColumns, gte, inArray, isNull, lte, sql } from 'drizzle-orm'
 import type { CustomerReadingInput, PreferencesInput } from '../../shared/schemas/portal'
-import type { Parameter, ReadingEvaluation } from '../../shared/types/water'
+import type { Parameter } from '../../shared/types/water'
 import { adviceFor } from '../../shared/utils/advice'
 import { addDays, localToday } from '../../shared/utils/recurrence'
-import type { UnitSystem } from '../../shared/utils/water/format'
 import { PARAMETER_LIST } from '../../shared/utils/water/parameters'
 import { companies, customerContacts, doses, outbox, photos, products, readings, sites, users, visits, waterFeatures } from '../db/schema'
 import { ownCustomerId, type SessionUser } from '../utils/auth'
@@ -21,13 +20,6 @@ function customerOf(actor: SessionUser) {
   return own
 }
 
-/** What customer advice is written with: the reader's units, the company's number, the computed values. */
-interface AdviceContext { unitSystem: UnitSystem, phone: string, computed?: ReadingEvaluation['computed'] }
-/**
- * The customer's advice. The advice engine takes the context as a fourth argument (its units, and
- * the number in "Call us today on …"); an engine that does not yet read it ignores it.
- */
-const advise = adviceFor as (...args: [...Parameters<typeof adviceFor>, AdviceContext]) => ReturnType<typeof adviceFor>
 /** A UV bulb is due about yearly (common practice, no source; the same rule as the alert scan). */
 const UV_BULB_DAYS = 365
 
@@ -72,7 +64,7 @@ export async function portalFeatures(actor: SessionUser) {
         id: f.id, name: f.name, kind: f.kind, siteId: f.siteId, siteName, volumeL: f.measuredVolumeL ?? f.computedVolumeL, fish: f.fish,
         equipment: f.equipment, ranges, nextVisit, due,
         latest: last ? { id: last.id, takenAt: last.takenAt, source: last.source, evaluation } : null,
-        advice: advise(evaluation, previous, nextVisit, { unitSystem: reader.unitSystem, phone: reader.phone, computed: last ? { nh3MgL: last.nh3MgL, nh3AsNMgL: null, nh3Fraction: null, doSaturationMgL: null, doSaturationPct: last.doSaturationPct } : undefined }),
+        advice: adviceFor(evaluation, previous, nextVisit, { unitSystem: reader.unitSystem, phone: reader.phone, nh3WatchMgL: ranges.nh3MgL?.watchAbove ?? null, computed: last ? { nh3MgL: last.nh3MgL, nh3AsNMgL: null, nh3Fraction: null, doSaturationMgL: null, doSaturationPct: last.doSaturationPct } : undefined }),
         phone: reader.phone,
       }
     })),
@@ -112,7 +104,7 @@ export async function addCustomerReading(actor: SessionUser, input: CustomerRead
   })
   return {
     id: input.id, overall: evaluation.overall, evaluation: evaluation.parameters,
-    advice: advise(evaluation.parameters, {}, null, { unitSystem: reader.unitSystem, phone: reader.phone, computed: evaluation.computed }), phone: reader.phone,
+    advice: adviceFor(evaluation.parameters, {}, null, { unitSystem: reader.unitSystem, phone: reader.phone, computed: evaluation.computed }), phone: reader.phone,
   }
 }
 

@@ -115,22 +115,31 @@ export interface BoundSource { source: string, sourceKind: SourceKind }
 /** Per-bound sources of a range (optional; the range's own `source` covers the rest). */
 export type RangeBoundSources = Partial<Record<RangeBound, BoundSource>>
 
-export type DosingSuggestionKey = 'kh_buffer' | 'water_change_ammonia' | 'water_change_nitrite' | 'salt_for_nitrite' | 'dechlorinator'
+export type DosingSuggestionKey =
+  | 'aeration' | 'feeding' | 'kh_buffer' | 'kh_after_ammonia' | 'water_change_ammonia' | 'water_change_nitrite'
+  | 'salt_for_nitrite' | 'dechlorinator'
+
+/** First things first: 1 oxygen, 2 ammonia and nitrite, 3 pH stability, 4 KH, 5 looks and the rest. */
+export type AdvicePriority = 1 | 2 | 3 | 4 | 5
 
 /** One piece of dosing advice, shown with the inputs it was computed from. */
 export interface DosingSuggestion {
   key: DosingSuggestionKey
   /** Plain name of what to add, e.g. 'sodium bicarbonate (KH buffer)'; never a brand. */
   product: string
-  /** How much; null when it cannot be computed (e.g. no label rate entered). */
+  /** How much, in SI (`unit`); null for advice without an amount (aeration, feeding) or when it cannot be computed. */
   amount: number | null
-  /** 'g', 'kg', 'L', or the label rate's unit. */
+  /** 'g', 'kg', 'L', or the label rate's unit ('' without an amount). */
   unit: string
-  /** For water changes: the fraction (0..1) of the volume to replace. */
+  /** The amount in the company's units, rounded to what a person can measure out ("2.7 lb", "7,800 L"); null without an amount. */
+  amountText: string | null
+  /** 1 oxygen, 2 ammonia and nitrite, 3 pH stability, 4 KH, 5 looks and the rest; suggestions come sorted by it. */
+  priority: AdvicePriority
+  /** For water changes: the fraction (0..1) of the volume to replace in the first step. */
   fraction?: number
-  /** Why, in plain words. */
+  /** Why, in plain words, in the company's units. */
   reason: string
-  /** What the amount was computed from (volumeL, fromDKH, toDKH, …). */
+  /** What the amount was computed from (volumeL, fromDKH, toDKH, …), in SI. */
   inputs: Record<string, number | string>
   cautions: string[]
 }

@@ -4,7 +4,7 @@ import type { UnitSystem } from '../../shared/utils/water/format'
 import { api, baseUrl, demo, tokenFor } from '../helpers/api'
 import { waitForMail } from '../helpers/mail'
 import { pdfText } from '../helpers/pdf-text'
-import { foreignUnits, stringsOf } from '../helpers/units-scan'
+import { foreignUnits, foreignUnitsIn, stringsIn } from '../helpers/units-scan'
 import { visitForTessToday } from '../helpers/visits'
 
 // For a US company and for a metric one, every sentence the evaluate endpoint, the visit report
@@ -50,9 +50,9 @@ for (const system of ['us', 'metric'] as const) {
         },
       })
       expect(r.status, JSON.stringify(r.body)).toBe(200)
-      const sentences = stringsOf({ parameters: r.body.parameters, suggestions: r.body.suggestions, cautions: r.body.cautions }, NOT_SENTENCES)
+      const sentences = stringsIn({ parameters: r.body.parameters, suggestions: r.body.suggestions, cautions: r.body.cautions }, NOT_SENTENCES)
       expect(sentences.join('\n')).toContain(DEGREES[system])
-      expect(foreignUnits(sentences, system)).toEqual([])
+      expect(foreignUnitsIn(sentences, system)).toEqual([])
     })
 
     it('an alert e-mail and the visit report e-mail', async () => {

@@ -1,65 +1,71 @@
-// Finds unit words of the other unit system in text a person reads: a US company's sentences
-// must not say °C, L, mL, g, kg, m, cm or mm; a metric company's must not say °F, gal, fl oz,
-// oz, lb, ft or in. Concentrations (mg/L, g/L), percent and pH belong to both and are not flagged.
+// Finds unit tokens of the other unit system in a text a person reads: a US company's sentence must
+// hold no °C, L, mL, g, kg, m, cm, mm or m²; a metric one no °F, gal, fl oz, oz, lb, ft, in or ft².
+// Neutral: concentrations in mg/L (a lab unit in both systems), %, ppt, dKH, pH, kPa. Salt in g/L is
+// the metric way of saying it (US says %), so "g/L" counts as metric. Letters that are also words
+// ("in", "m", "L", "g") count only right after a number ("12 in", "5 L"), so "in the pond" is fine.
 import type { UnitSystem } from '../../shared/utils/water/format'
 
-/** A number, then the unit: "5,678 L", "1.2kg", "3 ft". */
-const NUM = String.raw`\d(?:[\d,]*\d)?(?:\.\d+)?\s?`
-/** Not part of a concentration or a rate ("mg/L", "g/L", "L/h" is checked on its own). */
-const NOT_PER = String.raw`(?![\/\w²³])`
+interface Pattern { re: RegExp, system: UnitSystem }
 
-const TOKENS: Record<UnitSystem, Array<[name: string, re: RegExp]>> = {
-  // Units that give a metric text away: a US text must have none.
-  metric: [
-    ['°C', /°\s?C\b/],
-    ['Celsius', /\bcelsius\b/i],
-    ['litres', /\b(?:litres?|liters?|millilit(?:re|er)s?)\b/i],
-    ['L', new RegExp(String.raw`${NUM}(?:L|l|mL|ml)${NOT_PER}`)],
-    ['L/h', new RegExp(String.raw`${NUM}L\/h\b`)],
-    ['g, kg', new RegExp(String.raw`${NUM}(?:g|kg)${NOT_PER}`)],
-    ['grams', /\b(?:kilo)?grams?\b/i],
-    ['m, cm, mm', new RegExp(String.raw`${NUM}(?:m|cm|mm)(?:²|³)?(?![\/\w])`)],
-    ['metres', /\b(?:centi|milli)?(?:metres?|meters?)\b/i],
-  ],
-  // Units that give a US text away: a metric text must have none.
-  us: [
-    ['°F', /°\s?F\b/],
-    ['Fahrenheit', /\bfahrenheit\b/i],
-    ['gal', /\b(?:US\s)?gal(?:lons?)?\b/i],
-    ['fl oz', /\bfl\.?\s?oz\b/i],
-    ['oz', new RegExp(String.raw`${NUM}oz\b`)],
-    ['ounces', /\bounces?\b/i],
-    ['lb', new RegExp(String.raw`${NUM}lbs?\b`)],
-    ['pounds', /\bpounds?\b/i],
-    ['ft', new RegExp(String.raw`${NUM}(?:ft|feet|foot)(?:²|³)?(?![\w])`)],
-    ['in', new RegExp(String.raw`${NUM}(?:in|inch|inches)\b(?!\s(?:a|an|the|range|all|total|one|each|every|\d))`)],
-  ],
-}
+const NUM = String.raw`\d(?:[\d,]*\d)?(?:\.\d+)?`
+/** A unit right after a number (a space between or not), not followed by more of a word or a "/". */
+const afterNumber = (unit: string, system: UnitSystem): Pattern => ({ re: new RegExp(String.raw`${NUM}\s?(${unit})(?![\p{L}\d/²³])`, 'gu'), system })
+/** A unit anywhere as a whole word. */
+const word = (unit: string, system: UnitSystem, flags = 'giu'): Pattern => ({ re: new RegExp(String.raw`(?<![\p{L}/])(${unit})(?![\p{L}])`, flags), system })
 
-export interface UnitFinding { sentence: string, token: string, match: string }
+const PATTERNS: Pattern[] = [
+  // temperature
+  { re: /(°\s?C)(?![a-z])/gu, system: 'metric' },
+  { re: /(°\s?F)(?![a-z])/gu, system: 'us' },
+  word('degrees? (?:Celsius|centigrade)|Celsius', 'metric'),
+  word('degrees? Fahrenheit|Fahrenheit', 'us'),
+  // volume and liquid
+  word('litres?|liters?|millilitres?|milliliters?', 'metric'),
+  afterNumber('L|l|mL|ml|L/h|m³', 'metric'),
+  word('m³|L/h', 'metric', 'gu'),
+  word('(?:US )?gal(?:lons?)?(?:/h)?|fl\\.? ?oz|fluid ounces?|ft³|cu\\.? ?ft|cubic f(?:ee|oo)t', 'us'),
+  // mass
+  word('grams?|kilograms?|kilos?', 'metric'),
+  afterNumber('g|kg', 'metric'),
+  { re: /(?<![\p{L}])(g\/L)(?![\p{L}])/gu, system: 'metric' },
+  word('lbs?|pounds?|ounces?', 'us'),
+  afterNumber('oz', 'us'),
+  // length and area
+  word('centimet(?:re|er)s?|millimet(?:re|er)s?|m²|sq\\.? ?m|square met(?:re|er)s?', 'metric'),
+  // "metre" only after a number: a top-up meter is a thing, not a length
+  afterNumber('m|cm|mm|metres?|meters?', 'metric'),
+  word('ft²|sq\\.? ?ft|square f(?:ee|oo)t|feet|foot|ft|inch(?:es)?', 'us'),
+  { re: new RegExp(String.raw`${NUM}\s?(in|″)(?![\p{L}\d])(?!\s*\d)`, 'gu'), system: 'us' },
+]
 
-/** Splits text into sentences and lines (numbers like "7.5" keep their point). */
-export function sentencesOf(text: string): string[] {
-  return text.split(/\r?\n|(?<=[.!?])\s+(?=[A-Z(])/).map(s => s.trim()).filter(Boolean)
-}
+const other = (s: UnitSystem): UnitSystem => (s === 'us' ? 'metric' : 'us')
 
-/** Every place in `texts` where a unit of the system other than `system` is written. */
-export function foreignUnits(texts: string | readonly string[], system: UnitSystem): UnitFinding[] {
-  const other: UnitSystem = system === 'us' ? 'metric' : 'us'
-  const out: UnitFinding[] = []
-  for (const sentence of (typeof texts === 'string' ? [texts] : texts).flatMap(sentencesOf)) {
-    for (const [token, re] of TOKENS[other]) {
-      const m = re.exec(sentence)
-      if (m) out.push({ sentence, token, match: m[0] })
+/** Unit tokens in `text` that belong to the other system than `system`, in the order found. */
+export function foreignUnits(text: string, system: UnitSystem): string[] {
+  const found: Array<{ at: number, token: string }> = []
+  for (const p of PATTERNS) {
+    if (p.system !== other(system)) continue
+    for (const m of text.matchAll(p.re)) {
+      const token = m[1]!
+      found.push({ at: (m.index ?? 0) + m[0].length - token.length, token })
     }
   }
-  return out
+  // Two patterns can find the same token ("4,000 L/h"): keep one per position.
+  const byPosition = new Map(found.map(f => [f.at, f.token]))
+  return [...byPosition.entries()].sort((a, b) => a[0] - b[0]).map(([, token]) => token)
 }
 
-/** Every string inside a JSON value (the sentences of an API response), keys left out. */
-export function stringsOf(value: unknown, skipKeys: ReadonlySet<string> = new Set()): string[] {
+/** Every string in a nested value (objects, arrays), e.g. all the sentences of a suggestion list. */
+export function stringsIn(value: unknown, skipKeys: ReadonlySet<string> = new Set()): string[] {
   if (typeof value === 'string') return [value]
-  if (Array.isArray(value)) return value.flatMap(v => stringsOf(v, skipKeys))
-  if (value && typeof value === 'object') return Object.entries(value).flatMap(([k, v]) => (skipKeys.has(k) ? [] : stringsOf(v, skipKeys)))
+  if (Array.isArray(value)) return value.flatMap(v => stringsIn(v, skipKeys))
+  if (value && typeof value === 'object') {
+    return Object.entries(value).flatMap(([k, v]) => (skipKeys.has(k) ? [] : stringsIn(v, skipKeys)))
+  }
   return []
+}
+
+/** Each string with its foreign units, for a readable failure; empty when all is in `system`. */
+export function foreignUnitsIn(texts: readonly string[], system: UnitSystem): Array<{ text: string, units: string[] }> {
+  return texts.map(text => ({ text, units: foreignUnits(text, system) })).filter(x => x.units.length > 0)
 }

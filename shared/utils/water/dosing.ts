@@ -1,13 +1,20 @@
 // Dosing, water changes, turnover and water loss for one feature. Litres, grams, kilograms, mm.
 import type { DosingSuggestion, LabelRate, ParameterRange, RangeTable, WaterReading } from '../../types/water'
 import { ammoniaToNitrogen, unionizedAmmoniaFraction } from './ammonia'
+import { aerationAdvice, feedingAdvice, khAfterAmmoniaAdvice, type WaterState } from './care-advice'
 import { WaterInputError } from './errors'
-import { NITRITE_CHLORIDE_MIN_RATIO, totalAmmoniaAsN, validateWaterReading } from './evaluate'
+import { NITRITE_CHLORIDE_MIN_RATIO, totalAmmoniaAsN, validateWaterReading, type Measured } from './evaluate'
+import { formatAmount, formatDose, formatNumber, formatQuantity, type UnitSystem } from './format'
+import { oxygenPercentSaturation } from './oxygen'
+import { formatParameter } from './parameters'
+import {
+  ammoniaHoldsBackKh, CHEMICAL_CAUTIONS, nh3WatchLevel, PRIORITY, SAFETY, SALT_CAUTIONS, WATER_CHANGE_CAUTIONS,
+} from './rules'
 import {
   CACO3_EQUIVALENT_WEIGHT, CHLORIDE_MASS_FRACTION_NACL, INCH_M, MG_L_CACO3_PER_DKH, MOLAR_MASS, US_GALLON_L,
   mgLCaCO3ToDkh, saltGLToChlorideMgL,
 } from './units'
-import { finite, nonNegative, positive } from './validate'
+import { checkPressureKPa, finite, nonNegative, positive } from './validate'
 
 // ---------------------------------------------------------------------------------------------
 // Stoichiometry
@@ -171,14 +178,15 @@ export function waterLossStatus(mmPerDay: number, allowanceMmPerDay: number = EV
 }
 
 // ---------------------------------------------------------------------------------------------
-// Suggestions
+// Suggestions: first things first (./rules.ts), every figure a person reads in the company's units.
 
-export const DOSING_LABEL_CAUTION = 'Read and follow the product label'
-export const DOSING_CHILDREN_CAUTION = 'Keep chemicals away from children and pets'
-const BASE_CAUTIONS = [DOSING_LABEL_CAUTION, DOSING_CHILDREN_CAUTION]
+export const DOSING_LABEL_CAUTION = SAFETY.label
+export const DOSING_CHILDREN_CAUTION = SAFETY.children
 
 const upperLimit = (r?: ParameterRange) => r?.watchAbove ?? r?.actAbove
+const lowerLimit = (r?: ParameterRange) => r?.watchBelow ?? r?.actBelow
 const round = (v: number, digits = 3) => Number(v.toPrecision(digits))
+const pct = (f: number) => `${formatNumber(f * 100, 0)} %`
 
 export interface DosingSuggestionsInput {
   reading: WaterReading
@@ -188,194 +196,247 @@ export interface DosingSuggestionsInput {
   dechlorinatorRate?: LabelRate | null
   /** Fish live in the feature (default false: no salt is suggested without fish). */
   fish?: boolean
+  /** The company's unit system for every sentence (default 'metric'); amounts and inputs stay SI. */
+  unitSystem?: UnitSystem
+  /** Station pressure for the oxygen saturation (default sea level). */
+  pressureKPa?: number
 }
 
 interface WaterChangeSpec {
   key: 'water_change_ammonia' | 'water_change_nitrite'
   /** Why, e.g. "Total ammonia 0.8 mg/L as N is above 0.25". */
   why: string
-  /** What is being diluted, e.g. "total ammonia", and its unit. */
-  what: string
-  unit: string
+  /** What is being diluted and its target in words, e.g. "total ammonia down to 0.1 mg/L as N". */
+  toTarget: string
   current: number
   target: number
   volumeL: number
   inputs: Record<string, number | string>
+  system: UnitSystem
+  /** Another water change already offered for the same reading (the same water serves both). */
+  alongside?: string
 }
 
+/**
+ * A partial water change offered as its first step: at most about a third of the volume
+ * (MAX_WATER_CHANGE_FRACTION, common practice), with how many steps the whole job takes and a
+ * retest between them. `fraction` and `amount` are the first step's; the whole job is in `inputs`.
+ */
 function waterChange(w: WaterChangeSpec): DosingSuggestion | null {
-  const fraction = waterChangeFraction(w.current, w.target)
-  if (fraction <= 0) return null
-  const litres = fraction * w.volumeL
-  const changes = waterChangesNeeded(w.current, w.target)
-  const third = round(w.volumeL * MAX_WATER_CHANGE_FRACTION)
-  const split = fraction > MAX_WATER_CHANGE_FRACTION
-    ? `Change no more than about a third of the water at a time (common practice): ${Number.isFinite(changes) ? `about ${changes} changes` : 'several changes'} of up to ${third} L, retesting between them`
-    : 'Change no more than about a third of the water at a time (common practice)'
+  const total = waterChangeFraction(w.current, w.target)
+  if (total <= 0) return null
+  const steps = waterChangesNeeded(w.current, w.target)
+  const first = Math.min(total, MAX_WATER_CHANGE_FRACTION)
+  const litres = first * w.volumeL
+  const amountText = formatAmount('volume', litres, w.system)
+  const stepsText = steps === 1
+    ? 'one change should do it; retest after it'
+    : `${Number.isFinite(steps) ? `about ${steps} changes` : 'several changes'} in all, retesting between them`
+  const share = first >= MAX_WATER_CHANGE_FRACTION ? 'about a third' : `about ${pct(first)}`
   return {
     key: w.key,
     product: 'clean water (partial water change)',
     amount: litres,
     unit: 'L',
-    fraction,
-    reason: `${w.why}: replace about ${round(fraction * 100, 2)} % of the water (${round(litres)} L) to bring ${w.what} down to ${round(w.target)} ${w.unit}`,
-    inputs: { volumeL: w.volumeL, ...w.inputs, fraction },
+    amountText,
+    priority: PRIORITY.ammonia,
+    fraction: first,
+    reason: `${w.why}: as a first step, change ${share} of the water (${amountText}); ${stepsText}, to bring ${w.toTarget}${w.alongside ? ` (the same changes as for ${w.alongside}, not extra ones)` : ''}`,
+    inputs: { volumeL: w.volumeL, ...w.inputs, firstFraction: first, totalFraction: total, steps: Number.isFinite(steps) ? steps : 'several' },
     cautions: [
-      'Dechlorinate the new water and match its temperature to the pond water',
-      split,
-      'Retest after the change and find the cause (overfeeding, too many fish, or a filter that is not keeping up)',
-      ...BASE_CAUTIONS,
+      WATER_CHANGE_CAUTIONS.dechlorinate,
+      'Change no more than about a third of the water at a time (common practice)',
+      WATER_CHANGE_CAUTIONS.cause,
+      ...CHEMICAL_CAUTIONS,
     ],
   }
 }
 
+/** The measured values of a reading, and what the ranges make of ammonia, nitrite and oxygen. */
+function waterState(input: DosingSuggestionsInput, m: Measured, tanN: number | null): WaterState & { nh3Fraction: number | null } {
+  const { ranges } = input
+  const f = tanN !== null && m.pH !== undefined && m.temperatureC !== undefined ? unionizedAmmoniaFraction(m.pH, m.temperatureC) : null
+  const nh3 = f === null ? null : tanN! * f * (MOLAR_MASS.NH3 / MOLAR_MASS.N)
+  const over = (v: number | null | undefined, limit: number | undefined) => v != null && limit !== undefined && v > limit
+  const pressure = input.pressureKPa === undefined ? undefined : checkPressureKPa(input.pressureKPa)
+  const sat = m.dissolvedOxygenMgL !== undefined && m.temperatureC !== undefined ? oxygenPercentSaturation(m.dissolvedOxygenMgL, m.temperatureC, pressure) : null
+  return {
+    temperatureC: m.temperatureC ?? null,
+    dissolvedOxygenMgL: m.dissolvedOxygenMgL ?? null,
+    doLowMgL: lowerLimit(ranges.dissolvedOxygenMgL) ?? null,
+    doSaturationPct: sat,
+    doSaturationLowPct: lowerLimit(ranges.doSaturationPct) ?? null,
+    nh3MgL: nh3,
+    nh3WatchMgL: nh3WatchLevel(ranges),
+    nh3Fraction: f,
+    ammoniaHigh: over(tanN, upperLimit(ranges.totalAmmoniaMgL)),
+    nitriteHigh: over(m.nitriteMgL, upperLimit(ranges.nitriteMgL)),
+    ammoniaOrNitriteAct: over(tanN, ranges.totalAmmoniaMgL?.actAbove) || over(nh3, ranges.nh3MgL?.actAbove) || over(m.nitriteMgL, ranges.nitriteMgL?.actAbove),
+  }
+}
+
+function ammoniaChange(input: DosingSuggestionsInput, w: ReturnType<typeof waterState>, tanN: number | null, m: Measured, system: UnitSystem): DosingSuggestion | null {
+  const tanR = input.ranges.totalAmmoniaMgL
+  const nh3R = input.ranges.nh3MgL
+  const tanLimit = upperLimit(tanR)
+  const nh3Limit = upperLimit(nh3R)
+  const f = w.nh3Fraction
+  const nh3Over = w.nh3MgL !== null && nh3Limit !== undefined && w.nh3MgL > nh3Limit
+  // Either means total ammonia was measured (NH3 is computed from it).
+  if (tanN === null || (!w.ammoniaHigh && !nh3Over)) return null
+  let target = tanR?.target ?? (tanLimit !== undefined ? tanLimit / 2 : undefined)
+  // At high pH or temperature, aim lower so that NH3 ends at no more than half its limit.
+  if (f !== null && nh3Limit !== undefined) {
+    const forNh3 = ammoniaToNitrogen(nh3Limit / 2) / f
+    target = target === undefined ? forNh3 : Math.min(target, forNh3)
+  }
+  if (target === undefined) return null
+  const inputs: Record<string, number | string> = { currentTanMgLasN: tanN, targetTanMgLasN: target }
+  if (w.nh3MgL !== null) Object.assign(inputs, { nh3MgL: w.nh3MgL, pH: m.pH!, temperatureC: m.temperatureC! })
+  const tan = (v: number) => `${formatParameter('totalAmmoniaMgL', v, system)} as N`
+  const why = w.ammoniaHigh
+    ? `Total ammonia ${tan(tanN)} is above ${formatParameter('totalAmmoniaMgL', tanLimit!, system, { bare: true })}`
+    : `Un-ionized ammonia ${formatParameter('nh3MgL', w.nh3MgL!, system)} is above ${formatParameter('nh3MgL', nh3Limit!, system, { bare: true })}`
+  return waterChange({
+    key: 'water_change_ammonia', why, toTarget: `total ammonia down to ${tan(target)}`,
+    current: tanN, target, volumeL: input.volumeL, inputs, system,
+  })
+}
+
+function nitriteSuggestions(input: DosingSuggestionsInput, m: Measured, volumeL: number, system: UnitSystem, ammoniaChangeOffered: boolean): DosingSuggestion[] {
+  const out: DosingSuggestion[] = []
+  const nitrite = m.nitriteMgL
+  const nitriteR = input.ranges.nitriteMgL
+  if (nitrite === undefined) return out
+  const mgL = (v: number, bare = false) => formatParameter('nitriteMgL', v, system, { bare })
+  const limit = upperLimit(nitriteR)
+  if (limit !== undefined && nitrite > limit) {
+    const target = nitriteR?.target ?? limit / 2
+    const s = waterChange({
+      key: 'water_change_nitrite', why: `Nitrite ${mgL(nitrite)} is above ${mgL(limit, true)}`, toTarget: `nitrite down to ${mgL(target)}`,
+      current: nitrite, target, volumeL, inputs: { currentNitriteMgL: nitrite, targetNitriteMgL: target }, system,
+      alongside: ammoniaChangeOffered ? 'ammonia' : undefined,
+    })
+    if (s) out.push(s)
+  }
+  if (input.fish !== true) return out
+  // Keep chloride at least 10 × nitrite (SRAC 462). Without a salt reading, assume no salt yet.
+  const measuredSalt = m.saltGL !== undefined
+  const saltGL = m.saltGL ?? 0
+  const chloride = saltGLToChlorideMgL(saltGL)
+  const neededChloride = NITRITE_CHLORIDE_MIN_RATIO * nitrite
+  if (chloride >= neededChloride) return out
+  const targetSaltGL = saltGL + (neededChloride - chloride) / (1000 * CHLORIDE_MASS_FRACTION_NACL)
+  const kg = saltToTarget(volumeL, saltGL, targetSaltGL)
+  const saltLimit = upperLimit(input.ranges.saltGL)
+  const cl = (v: number) => formatQuantity('concentration', v, system, { digits: 0 })
+  const cautions: string[] = []
+  if (saltLimit !== undefined && targetSaltGL > saltLimit) {
+    cautions.push(`This would take salt to ${formatParameter('saltGL', targetSaltGL, system)}, above this feature's limit of ${formatParameter('saltGL', saltLimit, system)}: change water instead`)
+  }
+  if (!measuredSalt) cautions.push('Test the salt level first: this amount assumes there is no salt in the pond now')
+  cautions.push(SALT_CAUTIONS.plants, SALT_CAUTIONS.fish, SALT_CAUTIONS.stays, SALT_CAUTIONS.dissolve, ...CHEMICAL_CAUTIONS)
+  const chlorideNow = measuredSalt ? `chloride ${cl(chloride)}` : 'no salt measured (this assumes none in the pond; test salt first)'
+  out.push({
+    key: 'salt_for_nitrite',
+    product: 'pond salt (sodium chloride)',
+    amount: kg,
+    unit: 'kg',
+    amountText: formatAmount('mass', kg * 1000, system),
+    priority: PRIORITY.ammonia,
+    reason: `Nitrite ${mgL(nitrite)} with ${chlorideNow}: raise chloride to at least 10 × nitrite (${cl(neededChloride)}) so that nitrite harms the fish less (SRAC 462)`,
+    inputs: {
+      volumeL, nitriteMgL: nitrite, currentSaltGL: saltGL, saltMeasured: measuredSalt ? 'yes' : 'no', currentChlorideMgL: chloride,
+      targetChlorideMgL: neededChloride, targetSaltGL,
+    },
+    cautions,
+  })
+  return out
+}
+
+function khSuggestion(input: DosingSuggestionsInput, m: Measured, w: ReturnType<typeof waterState>, volumeL: number, system: UnitSystem): DosingSuggestion | null {
+  const khR = input.ranges.khMgL
+  const khTarget = khR ? khR.target ?? khR.watchBelow ?? khR.actBelow : undefined
+  if (m.khMgL === undefined || khTarget === undefined || m.khMgL >= khTarget) return null
+  // No pH or KH raiser while un-ionized ammonia is at or above its watch level (Emerson et al. 1975).
+  if (ammoniaHoldsBackKh(w.nh3MgL, w.nh3WatchMgL, w.ammoniaHigh)) {
+    return khAfterAmmoniaAdvice({ khMgL: m.khMgL, targetKhMgL: khTarget, nh3MgL: w.nh3MgL, nh3WatchMgL: w.nh3WatchMgL }, system)
+  }
+  const fromDKH = mgLCaCO3ToDkh(m.khMgL)
+  const toDKH = mgLCaCO3ToDkh(khTarget)
+  const grams = bicarbonateForKH(volumeL, fromDKH, toDKH)
+  const days = Math.max(1, Math.ceil((toDKH - fromDKH) / MAX_KH_RISE_DKH_PER_DAY - 1e-9))
+  const kh = (v: number, bare = false) => formatParameter('khMgL', v, system, { bare })
+  return {
+    key: 'kh_buffer',
+    product: 'sodium bicarbonate (KH buffer)',
+    amount: grams,
+    unit: 'g',
+    amountText: formatAmount('mass', grams, system),
+    priority: PRIORITY.kh,
+    reason: `KH ${kh(m.khMgL)} is below the target of ${kh(khTarget, true)}: sodium bicarbonate raises it and steadies pH`,
+    inputs: { volumeL, fromKhMgL: m.khMgL, toKhMgL: khTarget, fromDKH, toDKH, days },
+    cautions: [
+      days > 1
+        ? `Raise KH by no more than about 1 dKH (18 mg/L) a day (common practice): split this into ${days} daily doses of about ${formatAmount('mass', grams / days, system)}`
+        : 'Raise KH by no more than about 1 dKH (18 mg/L) a day (common practice)',
+      'Dissolve it in a bucket of pond water and spread it around the pond',
+      'Retest KH and pH the next day',
+      ...CHEMICAL_CAUTIONS,
+    ],
+  }
+}
+
+function dechlorinatorSuggestion(input: DosingSuggestionsInput, system: UnitSystem): DosingSuggestion | null {
+  const topUp = input.topUpLitres === undefined || input.topUpLitres === null ? 0 : nonNegative(input.topUpLitres, 'topUpLitres', 'Top-up')
+  if (topUp <= 0) return null
+  const rate = input.dechlorinatorRate ?? null
+  const water = formatAmount('volume', topUp, system)
+  const cautions = [
+    'Add the dechlorinator as the new water goes in',
+    `If the tap water is chloraminated, neutralising it releases ammonia (about ${round(chloramineAmmoniaNMgL(1), 2)} mg/L as N for each 1 mg/L of chloramine as Cl2): retest ammonia after a big top-up`,
+    ...CHEMICAL_CAUTIONS,
+  ]
+  const base = { key: 'dechlorinator', product: 'dechlorinator', priority: PRIORITY.ammonia, cautions } as const
+  if (!rate) {
+    return { ...base, cautions: [...cautions], amount: null, unit: '', amountText: null, reason: `Enter the dechlorinator's label rate to work out the dose for ${water} of top-up water`, inputs: { topUpLitres: topUp } }
+  }
+  const dose = dechlorinatorDose(topUp, rate)
+  return {
+    ...base,
+    cautions: [...cautions],
+    amount: dose.amount,
+    unit: dose.unit,
+    amountText: formatDose(dose.amount, dose.unit, system),
+    reason: `${water} of tap water was added: dechlorinate it at the label rate of ${formatDose(rate.amount, rate.unit, system)} per ${formatAmount('volume', rate.perLitres, system)}`,
+    inputs: { topUpLitres: topUp, labelAmount: rate.amount, labelUnit: rate.unit, labelPerLitres: rate.perLitres },
+  }
+}
+
 /**
- * Dosing advice for one reading of a feature of `volumeL` litres, against its ranges:
- * KH buffer, partial water changes for ammonia or nitrite, pond salt against nitrite (fish only),
- * and dechlorinator for a top-up. Each suggestion carries the inputs it was computed from.
+ * Dosing advice for one reading of a feature of `volumeL` litres, against its ranges, first things
+ * first (sorted by `priority`): aeration, partial water changes for ammonia or nitrite, pond salt
+ * against nitrite (fish only), feeding, KH buffer (or, while un-ionized ammonia is at or above its
+ * watch level, the advice to raise KH once ammonia is down) and dechlorinator for a top-up. Each
+ * suggestion carries the SI inputs it was computed from; its sentences are in `unitSystem`.
  */
 export function dosingSuggestions(input: DosingSuggestionsInput): DosingSuggestion[] {
   if (input === null || typeof input !== 'object') throw new WaterInputError('input', 'input is required')
-  const { reading, ranges } = input
+  const system: UnitSystem = input.unitSystem ?? 'metric'
   const volumeL = positive(input.volumeL, 'volumeL', 'Volume')
-  const m = validateWaterReading(reading)
+  if (input.ranges == null) input = { ...input, ranges: {} }
+  const m = validateWaterReading(input.reading)
+  const tanN = totalAmmoniaAsN(input.reading)
+  const w = waterState(input, m, tanN)
+
   const out: DosingSuggestion[] = []
-
-  // Ammonia: TAN over its limit, or computed NH3 over its limit.
-  const tanN = totalAmmoniaAsN(reading)
-  const tanR = ranges?.totalAmmoniaMgL
-  const nh3R = ranges?.nh3MgL
-  if (tanN !== null && tanN > 0) {
-    const f = m.pH !== undefined && m.temperatureC !== undefined ? unionizedAmmoniaFraction(m.pH, m.temperatureC) : null
-    const nh3 = f === null ? null : tanN * f * (MOLAR_MASS.NH3 / MOLAR_MASS.N)
-    const tanLimit = upperLimit(tanR)
-    const nh3Limit = upperLimit(nh3R)
-    const tanOver = tanLimit !== undefined && tanN > tanLimit
-    const nh3Over = nh3 !== null && nh3Limit !== undefined && nh3 > nh3Limit
-    if (tanOver || nh3Over) {
-      let target = tanR?.target ?? (tanLimit !== undefined ? tanLimit / 2 : undefined)
-      // At high pH or temperature, aim lower so that NH3 ends at no more than half its limit.
-      if (f !== null && f > 0 && nh3Limit !== undefined) {
-        const forNh3 = ammoniaToNitrogen(nh3Limit / 2) / f
-        target = target === undefined ? forNh3 : Math.min(target, forNh3)
-      }
-      if (target !== undefined) {
-        const inputs: Record<string, number | string> = { currentTanMgLasN: tanN, targetTanMgLasN: target }
-        if (nh3 !== null) Object.assign(inputs, { nh3MgL: nh3, pH: m.pH!, temperatureC: m.temperatureC! })
-        const why = tanOver
-          ? `Total ammonia ${round(tanN)} mg/L as N is above ${tanLimit}`
-          : `Un-ionized ammonia ${round(nh3!)} mg/L is above ${nh3Limit}`
-        const s = waterChange({
-          key: 'water_change_ammonia', why, what: 'total ammonia', unit: 'mg/L as N',
-          current: tanN, target, volumeL, inputs,
-        })
-        if (s) out.push(s)
-      }
-    }
-  }
-
-  // Nitrite: water change when over its limit; salt (fish only) when chloride < 10 × nitrite.
-  const nitrite = m.nitriteMgL
-  const nitriteR = ranges?.nitriteMgL
-  if (nitrite !== undefined && nitrite > 0) {
-    const limit = upperLimit(nitriteR)
-    if (limit !== undefined && nitrite > limit) {
-      const target = nitriteR?.target ?? limit / 2
-      const s = waterChange({
-        key: 'water_change_nitrite', why: `Nitrite ${round(nitrite)} mg/L is above ${limit}`, what: 'nitrite', unit: 'mg/L',
-        current: nitrite, target, volumeL, inputs: { currentNitriteMgL: nitrite, targetNitriteMgL: target },
-      })
-      if (s) out.push(s)
-    }
-    if (input.fish === true && m.saltGL !== undefined) {
-      const chloride = saltGLToChlorideMgL(m.saltGL)
-      const neededChloride = NITRITE_CHLORIDE_MIN_RATIO * nitrite
-      if (chloride < neededChloride) {
-        const targetSaltGL = m.saltGL + (neededChloride - chloride) / (1000 * CHLORIDE_MASS_FRACTION_NACL)
-        const kg = saltToTarget(volumeL, m.saltGL, targetSaltGL)
-        const saltLimit = upperLimit(ranges?.saltGL)
-        const cautions = [
-          'Salt harms many plants and some fish: check what lives in the feature first',
-          'Salt stays in the water when it evaporates; only water changes lower it',
-          'Dissolve the salt in pond water and add it a little at a time',
-        ]
-        if (saltLimit !== undefined && targetSaltGL > saltLimit) {
-          cautions.unshift(`This would take salt to ${round(targetSaltGL)} g/L, above this feature's limit of ${saltLimit} g/L: change water instead`)
-        }
-        out.push({
-          key: 'salt_for_nitrite',
-          product: 'pond salt (sodium chloride)',
-          amount: kg,
-          unit: 'kg',
-          reason: `Nitrite ${round(nitrite)} mg/L with chloride ${round(chloride)} mg/L: raise chloride to at least 10 × nitrite (${round(neededChloride)} mg/L) to protect fish (SRAC 462)`,
-          inputs: {
-            volumeL, nitriteMgL: nitrite, currentSaltGL: m.saltGL, currentChlorideMgL: chloride,
-            targetChlorideMgL: neededChloride, targetSaltGL,
-          },
-          cautions: [...cautions, ...BASE_CAUTIONS],
-        })
-      }
-    }
-  }
-
-  // KH below the target (or watch level) → sodium bicarbonate to the target.
-  const khR = ranges?.khMgL
-  const khTarget = khR ? khR.target ?? khR.watchBelow ?? khR.actBelow : undefined
-  if (m.khMgL !== undefined && khTarget !== undefined && m.khMgL < khTarget) {
-    const fromDKH = mgLCaCO3ToDkh(m.khMgL)
-    const toDKH = mgLCaCO3ToDkh(khTarget)
-    const grams = bicarbonateForKH(volumeL, fromDKH, toDKH)
-    const days = Math.max(1, Math.ceil((toDKH - fromDKH) / MAX_KH_RISE_DKH_PER_DAY - 1e-9))
-    out.push({
-      key: 'kh_buffer',
-      product: 'sodium bicarbonate (KH buffer)',
-      amount: grams,
-      unit: 'g',
-      reason: `KH ${round(m.khMgL)} mg/L is below the target of ${round(khTarget)} mg/L: sodium bicarbonate raises it and steadies pH`,
-      inputs: { volumeL, fromKhMgL: m.khMgL, toKhMgL: khTarget, fromDKH, toDKH, days },
-      cautions: [
-        days > 1
-          ? `Raise KH by no more than about 1 dKH (18 mg/L) a day (common practice): split this into ${days} daily doses of about ${round(grams / days)} g`
-          : 'Raise KH by no more than about 1 dKH (18 mg/L) a day (common practice)',
-        'Dissolve it in a bucket of pond water and spread it around the pond',
-        'Retest KH and pH the next day',
-        ...BASE_CAUTIONS,
-      ],
-    })
-  }
-
-  // Dechlorinator for a top-up.
-  const topUp = input.topUpLitres === undefined || input.topUpLitres === null ? 0 : nonNegative(input.topUpLitres, 'topUpLitres', 'Top-up')
-  if (topUp > 0) {
-    const rate = input.dechlorinatorRate ?? null
-    const cautions = [
-      'Add the dechlorinator as the new water goes in',
-      `If the tap water is chloraminated, neutralising it releases ammonia (about ${round(chloramineAmmoniaNMgL(1), 2)} mg/L as N for each 1 mg/L of chloramine as Cl2): retest ammonia after a big top-up`,
-      ...BASE_CAUTIONS,
-    ]
-    if (rate) {
-      const dose = dechlorinatorDose(topUp, rate)
-      out.push({
-        key: 'dechlorinator',
-        product: 'dechlorinator',
-        amount: dose.amount,
-        unit: dose.unit,
-        reason: `${round(topUp)} L of tap water was added: dechlorinate it at the label rate of ${rate.amount} ${rate.unit} per ${rate.perLitres} L`,
-        inputs: { topUpLitres: topUp, labelAmount: rate.amount, labelUnit: rate.unit, labelPerLitres: rate.perLitres },
-        cautions,
-      })
-    } else {
-      out.push({
-        key: 'dechlorinator',
-        product: 'dechlorinator',
-        amount: null,
-        unit: '',
-        reason: `Enter the dechlorinator's label rate to compute the dose for ${round(topUp)} L of top-up water`,
-        inputs: { topUpLitres: topUp },
-        cautions,
-      })
-    }
-  }
-
-  return out
+  const add = (s: DosingSuggestion | null) => { if (s) out.push(s) }
+  add(aerationAdvice(w, system))
+  add(ammoniaChange({ ...input, volumeL }, w, tanN, m, system))
+  out.push(...nitriteSuggestions(input, m, volumeL, system, out.some(s => s.key === 'water_change_ammonia')))
+  add(feedingAdvice(w, system))
+  add(khSuggestion(input, m, w, volumeL, system))
+  add(dechlorinatorSuggestion(input, system))
+  // A stable sort keeps the order above within one priority.
+  return out.sort((a, b) => a.priority - b.priority)
 }

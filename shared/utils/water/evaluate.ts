@@ -27,7 +27,8 @@ const CONCENTRATIONS = [
   'totalAmmoniaMgL', 'nitriteMgL', 'nitrateMgL', 'khMgL', 'ghMgL', 'dissolvedOxygenMgL', 'saltGL', 'chlorineMgL', 'phosphateMgL',
 ] as const
 
-type Measured = Partial<Record<keyof WaterReading, number>>
+/** The present numbers of a reading. */
+export type Measured = Partial<Record<keyof WaterReading, number>>
 
 const present = (v: number | null | undefined): v is number => v !== null && v !== undefined
 
@@ -56,44 +57,49 @@ export function totalAmmoniaAsN(reading: WaterReading): number | null {
   return reading.ammoniaBasis === 'NH3' ? ammoniaToNitrogen(tan) : tan
 }
 
+/** What every act-level reason ends with. */
+export const ACT_TODAY = 'act today'
+/** Words that belong to act-level advice only: a watch-level sentence never contains them. */
+export const ACT_WORDS = /\b(?:today|now|immediately|urgent(?:ly)?|at once|call us)\b/i
+
 interface Wording { low?: [watch: string, act: string], high?: [watch: string, act: string] }
 
 const WORDS: Record<Parameter, Wording> = {
   temperatureC: {
     low: ['cold water — feed less', 'very cold — stop feeding and keep a hole in any ice'],
-    high: ['warm water holds less oxygen — add aeration and shade', 'too warm for fish — aerate, shade and feed less — act today'],
+    high: ['warm water holds less oxygen — add aeration and shade', 'too warm for fish — aerate, shade and feed less'],
   },
   pH: {
     low: ['pH is drifting down — check KH', 'the water is turning acidic — check KH'],
-    high: ['the water is quite alkaline — ammonia is more toxic as pH rises', 'the water is strongly alkaline — look for fresh mortar or concrete and heavy algae — act today'],
+    high: ['the water is quite alkaline — ammonia is more toxic as pH rises', 'the water is strongly alkaline — look for fresh mortar or concrete and heavy algae'],
   },
   totalAmmoniaMgL: {
-    high: ['ammonia is building up — feed less and check the filter', 'ammonia is high — change some water and feed less — act today'],
+    high: ['ammonia is building up — feed less and check the filter', 'ammonia is high — change some water and feed less'],
   },
   nh3MgL: {
-    high: ['stressful to fish over time — feed less and check the filter', 'harmful to fish — act today'],
+    high: ['stressful to fish over time — feed less and check the filter', 'harmful to fish'],
   },
   nitriteMgL: {
-    high: ['the filter is not keeping up — feed less and retest', 'harmful to fish — change some water — act today'],
+    high: ['the filter is not keeping up — feed less and retest', 'harmful to fish — change some water'],
   },
   nitrateMgL: {
     high: ['feeds algae — plan a partial water change', 'high — change some water and review feeding and stocking'],
   },
   khMgL: {
-    low: ['the buffer is getting low — pH may swing', 'the water has almost no buffer — pH can crash — act today'],
+    low: ['the buffer is getting low — pH may swing', 'the water has almost no buffer — pH can crash'],
   },
   ghMgL: {},
   dissolvedOxygenMgL: {
-    low: ['oxygen is getting low — add aeration', 'fish may struggle for oxygen — aerate now — act today'],
+    low: ['oxygen is getting low — add aeration', 'fish may struggle for oxygen — aerate day and night'],
   },
   doSaturationPct: {
-    low: ['the water holds less oxygen than it could — add aeration or water movement', 'very little oxygen for this temperature — aerate now — act today'],
+    low: ['the water holds less oxygen than it could — add aeration or water movement', 'very little oxygen for this temperature — aerate day and night'],
   },
   saltGL: {
     high: ['more salt than a standing pond level — hard on plants', 'as strong as a short treatment bath — too much to leave in the pond; change some water'],
   },
   chlorineMgL: {
-    high: ['chlorine from tap water — add dechlorinator', 'chlorine is toxic to fish — add dechlorinator now — act today'],
+    high: ['chlorine from tap water — add dechlorinator', 'chlorine is toxic to fish — add dechlorinator for the whole pond'],
   },
   phosphateMgL: {
     high: ['feeds algae — check feeding and plant cover', 'strongly feeds algae — check feeding, plant cover and fertiliser run-off'],
@@ -111,8 +117,9 @@ export function classifyParameterValue(parameter: Parameter, value: number, rang
   const label = PARAMETER_CATALOGUE[parameter].label
   const head = `${label} ${withUnit(parameter, value, system)}`
   const crossed = (status: ReadingStatus, limit: number, dir: 'low' | 'high'): ParameterEvaluation => {
-    const text = w[dir]?.[status === 'act' ? 1 : 0]
-      ?? `${dir === 'low' ? 'below' : 'above'} the range set for this feature${status === 'act' ? ' — act today' : ''}`
+    const words = w[dir]?.[status === 'act' ? 1 : 0] ?? `${dir === 'low' ? 'below' : 'above'} the range set for this feature`
+    // Act-level reasons say so; watch-level reasons never use act words (see ACT_WORDS).
+    const text = status === 'act' ? `${words} — ${ACT_TODAY}` : words
     return { parameter, value, status, limit, reason: `${head} is ${dir === 'low' ? 'below' : 'above'} ${bare(parameter, limit, system)}: ${text}` }
   }
   if (range.actBelow !== undefined && value < range.actBelow) return crossed('act', range.actBelow, 'low')

@@ -151,6 +151,8 @@ export function mergeRanges(base: RangeTable, overrides?: RangeTable | null): Ra
     const kept = Object.fromEntries(Object.entries(boundSources).filter(([, s]) => s !== undefined)) as Partial<Record<RangeBound, BoundSource>>
     if (Object.keys(kept).length > 0) merged.boundSources = kept
     else delete merged.boundSources
+    // A range is "published" only while every bound with a source of its own is.
+    if (Object.values(kept).some(s => s.sourceKind !== 'published')) merged.sourceKind = 'common practice'
     out[p] = merged
   }
   return out

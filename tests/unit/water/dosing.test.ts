@@ -7,7 +7,7 @@ import {
   kgToPounds, MAX_KH_RISE_DKH_PER_DAY, MAX_WATER_CHANGE_FRACTION, mgLCaCO3ToDkh, mmToTopUpLitres, NAHCO3_MG_PER_MG_CACO3,
   saltGLToChlorideMgL, saltToTarget, thiosulfatePerChlorine, topUpLitresToMm, turnoverPerHour, TURNOVER_TARGET_PER_HOUR,
   usGallonsToLitres, waterChangeFraction, waterChangesNeeded, waterfallFlowLph, WATERFALL_US_GPH_PER_INCH, WaterInputError,
-  waterLossStatus, inchesToMm, squareFeetToSquareMetres, litresToUsGallons, unionizedAmmonia,
+  waterLossStatus, inchesToMm, squareFeetToSquareMetres, litresToUsGallons, unionizedAmmonia, unionizedAmmoniaFraction, dkhToMgLCaCO3,
 } from '../../../shared/utils/water-chemistry'
 
 const within = (value: number, expected: number, rel: number) => expect(Math.abs(value - expected) / expected).toBeLessThanOrEqual(rel)
@@ -249,23 +249,42 @@ describe('dosingSuggestions', () => {
     expect(out[0]!.amount).toBeCloseTo(bicarbonateForKH(1000, mgLCaCO3ToDkh(30), mgLCaCO3ToDkh(60)), 9)
   })
 
-  it('total ammonia over its limit → partial water change to the TAN target', () => {
+  it('total ammonia over its limit → a first-step water change of about a third, with the whole job in the text and inputs', () => {
     const reading: WaterReading = { totalAmmoniaMgL: 1.0, pH: 7.5, temperatureC: 20 }
     const out = dosingSuggestions({ reading, volumeL: 8000, ranges: koi })
     const s = out.find(x => x.key === 'water_change_ammonia')!
     expect(s).toBeDefined()
-    expect(s.fraction).toBeCloseTo(0.9, 9) // 1 − 0.1/1.0 (koi target 0.1 mg/L as N)
-    expect(s.amount).toBeCloseTo(7200, 6)
+    // whole job: 1 − 0.1/1.0 = 90 % (koi target 0.1 mg/L as N); ⅔⁶ = 0.088 ≤ 0.1 < ⅔⁵ → 6 changes (C: dilution)
+    expect(s.inputs.totalFraction).toBeCloseTo(0.9, 9)
+    expect(s.inputs.steps).toBe(6)
+    // the headline is the first step: a third (MAX_WATER_CHANGE_FRACTION, common practice)
+    expect(s.fraction).toBeCloseTo(1 / 3, 12)
+    expect(s.amount).toBeCloseTo(8000 / 3, 6)
     expect(s.unit).toBe('L')
+    expect(s.amountText).toBe('2,670 L')
+    expect(s.priority).toBe(2)
+    expect(s.reason).toBe('Total ammonia 1 mg/L as N is above 0.25: as a first step, change about a third of the water (2,670 L); about 6 changes in all, retesting between them, to bring total ammonia down to 0.1 mg/L as N')
+    expect(s.reason).not.toMatch(/90 %/)
     expect(s.cautions.join(' ')).toMatch(/[Dd]echlorinate the new water and match its temperature/)
-    expect(s.cautions.join(' ')).toMatch(/no more than about a third.*about 6 changes of up to 2670 L/)
     common(s)
+  })
+
+  it('a small water change is offered whole, as one step', () => {
+    // TAN 0.3 → 0.1 needs 1 − 0.1/0.3 = 0.667 > ⅓, but TAN 0.3 with a target of 0.25: 1 − 0.25/0.3 = 16.7 %
+    const ranges = { ...koi, totalAmmoniaMgL: { watchAbove: 0.28, target: 0.25, source: 'x', sourceKind: 'common practice' as const } }
+    const s = dosingSuggestions({ reading: { totalAmmoniaMgL: 0.3 }, volumeL: 6000, ranges })[0]!
+    expect(s.fraction).toBeCloseTo(1 - 0.25 / 0.3, 12)
+    expect(s.amount).toBeCloseTo(1000, 6)
+    expect(s.inputs.steps).toBe(1)
+    expect(s.reason).toMatch(/change about 17 % of the water \(1,000 L\); one change should do it; retest after it/)
   })
 
   it('ammonia reported as NH3 gives the same water change as the same water reported as N', () => {
     const asN = dosingSuggestions({ reading: { totalAmmoniaMgL: 0.8, pH: 7.2, temperatureC: 15 }, volumeL: 3000, ranges: koi })
     const asNH3 = dosingSuggestions({ reading: { totalAmmoniaMgL: 0.8 * 17.031 / 14.007, ammoniaBasis: 'NH3', pH: 7.2, temperatureC: 15 }, volumeL: 3000, ranges: koi })
-    expect(asNH3[0]!.amount).toBeCloseTo(asN[0]!.amount!, 6)
+    const wc = (l: DosingSuggestion[]) => l.find(x => x.key === 'water_change_ammonia')!
+    expect(wc(asNH3).inputs.totalFraction).toBeCloseTo(wc(asN).inputs.totalFraction as number, 9)
+    expect(wc(asNH3).inputs.targetTanMgLasN).toBeCloseTo(wc(asN).inputs.targetTanMgLasN as number, 9)
   })
 
   it('NH3 over its limit at high pH, even with TAN under its own limit, aims low enough for NH3', () => {
@@ -277,29 +296,43 @@ describe('dosingSuggestions', () => {
     expect(target).toBeLessThan(0.1)
     // at the target, NH3 is half the 0.02 mg/L watch limit
     expect(unionizedAmmonia(target, 8.8, 28) * 17.031 / 14.007).toBeCloseTo(0.01, 9)
-    expect(s.fraction).toBeCloseTo(1 - target / 0.2, 9)
+    expect(s.inputs.totalFraction).toBeCloseTo(1 - target / 0.2, 9)
+    expect(s.fraction).toBeCloseTo(Math.min(1 / 3, 1 - target / 0.2), 9)
   })
 
   it('nitrite over limit with fish and no salt → water change and pond salt to chloride ≥ 10 × nitrite (SRAC 462)', () => {
     const reading: WaterReading = { nitriteMgL: 0.5, saltGL: 0 }
     const out = dosingSuggestions({ reading, volumeL: 10_000, ranges: koi, fish: true })
-    expect(out.map(s => s.key)).toEqual(['water_change_nitrite', 'salt_for_nitrite'])
+    expect(out.map(s => s.key)).toEqual(['water_change_nitrite', 'salt_for_nitrite', 'feeding'])
     const wc = out[0]!
-    expect(wc.fraction).toBeCloseTo(1 - 0.05 / 0.5, 9) // target = watchAbove/2
+    expect(wc.inputs.totalFraction).toBeCloseTo(1 - 0.05 / 0.5, 9) // target = watchAbove/2
+    expect(wc.fraction).toBeCloseTo(1 / 3, 9)
     const salt = out[1]!
     expect(salt.product).toBe('pond salt (sodium chloride)')
     expect(salt.unit).toBe('kg')
     // 5 mg/L chloride needs 5 / 0.6066 = 8.243 mg/L NaCl; × 10 000 L = 82.4 g
     expect(salt.amount).toBeCloseTo((5 / 0.60661) * 10_000 / 1e6, 4)
     expect(salt.inputs.targetChlorideMgL).toBeCloseTo(5, 12)
-    expect(salt.cautions.join(' ')).toMatch(/harms many plants and some fish/)
+    expect(salt.amountText).toBe('82 g')
+    expect(salt.cautions.join(' ')).toMatch(/harms many plants/)
+    expect(salt.cautions.join(' ')).toMatch(/Some fish do not tolerate salt/)
+    expect(salt.cautions.join(' ')).toMatch(/does not evaporate/)
+    expect(salt.cautions.join(' ')).not.toMatch(/assumes/)
     common(salt)
   })
 
-  it('no salt without fish, or when salt is not measured, or when chloride is already enough', () => {
-    expect(dosingSuggestions({ reading: { nitriteMgL: 0.5, saltGL: 0 }, volumeL: 1000, ranges: koi }).map(s => s.key)).toEqual(['water_change_nitrite'])
-    expect(dosingSuggestions({ reading: { nitriteMgL: 0.5 }, volumeL: 1000, ranges: koi, fish: true }).map(s => s.key)).toEqual(['water_change_nitrite'])
-    expect(dosingSuggestions({ reading: { nitriteMgL: 0.5, saltGL: 1 }, volumeL: 1000, ranges: koi, fish: true }).map(s => s.key)).toEqual(['water_change_nitrite'])
+  it('no salt without fish, or when chloride is already enough', () => {
+    expect(dosingSuggestions({ reading: { nitriteMgL: 0.5, saltGL: 0 }, volumeL: 1000, ranges: koi }).map(s => s.key)).toEqual(['water_change_nitrite', 'feeding'])
+    expect(dosingSuggestions({ reading: { nitriteMgL: 0.5, saltGL: 1 }, volumeL: 1000, ranges: koi, fish: true }).map(s => s.key)).toEqual(['water_change_nitrite', 'feeding'])
+  })
+
+  it('salt not measured: the amount assumes no salt in the pond, and says to test salt first', () => {
+    const out = dosingSuggestions({ reading: { nitriteMgL: 0.5 }, volumeL: 1000, ranges: koi, fish: true })
+    const salt = out.find(s => s.key === 'salt_for_nitrite')!
+    expect(salt.amount).toBeCloseTo((5 / 0.60661) * 1000 / 1e6, 5) // as from 0 g/L (SRAC 462: 10 × 0.5 = 5 mg/L chloride)
+    expect(salt.inputs).toMatchObject({ currentSaltGL: 0, saltMeasured: 'no' })
+    expect(salt.reason).toMatch(/no salt measured/)
+    expect(salt.cautions[0]).toBe('Test the salt level first: this amount assumes there is no salt in the pond now')
   })
 
   it('top-up with a label rate → dechlorinator dose for the top-up volume', () => {
@@ -326,5 +359,204 @@ describe('dosingSuggestions', () => {
 
   it('nothing to suggest for good water and no top-up', () => {
     expect(dosingSuggestions({ reading: { pH: 7.6, khMgL: 140, totalAmmoniaMgL: 0, nitriteMgL: 0, temperatureC: 20 }, volumeL: 5000, ranges: koi, fish: true })).toEqual([])
+  })
+})
+
+describe('input errors a person reads: the field and its label (shown beside the form field)', () => {
+  const error = (fn: () => unknown) => {
+    try { fn() } catch (e) { expect(e).toBeInstanceOf(WaterInputError); return [(e as WaterInputError).field, (e as Error).message] }
+    throw new Error('did not throw')
+  }
+  const rate = { amount: 1, unit: 'mL', perLitres: 100 }
+  it.each([
+    [() => thiosulfatePerChlorine('chloride' as never), 'reaction', 'reaction must be "sulfate" or "tetrathionate"'],
+    [() => chloramineAmmoniaNMgL(-1), 'chloramineMgL', 'Chloramine must not be negative'],
+    [() => doseFromLabelRate(-1, rate), 'volumeL', 'Volume must not be negative'],
+    [() => doseFromLabelRate(10, null as never), 'labelRate', 'A label rate is required'],
+    [() => doseFromLabelRate(10, 'x' as never), 'labelRate', 'A label rate is required'],
+    [() => doseFromLabelRate(10, { ...rate, amount: -1 }), 'labelRate.amount', 'Label amount must not be negative'],
+    [() => doseFromLabelRate(10, { ...rate, perLitres: 0 }), 'labelRate.perLitres', 'Label volume must be greater than zero'],
+    [() => doseFromLabelRate(10, { ...rate, unit: '  ' }), 'labelRate.unit', 'Label unit is required'],
+    [() => doseFromLabelRate(10, { ...rate, unit: 5 as never }), 'labelRate.unit', 'Label unit is required'],
+    [() => bicarbonateForKH(-1, 1, 2), 'volumeL', 'Volume must not be negative'],
+    [() => bicarbonateForKH(1, -1, 2), 'fromDKH', 'Current KH must not be negative'],
+    [() => bicarbonateForKH(1, 1, -2), 'toDKH', 'Target KH must not be negative'],
+    [() => saltToTarget(-1, 0, 1), 'volumeL', 'Volume must not be negative'],
+    [() => saltToTarget(1, -1, 1), 'currentPpt', 'Current salt must not be negative'],
+    [() => saltToTarget(1, 0, -1), 'targetPpt', 'Target salt must not be negative'],
+    [() => waterChangeFraction(-1, 0), 'current', 'Current concentration must not be negative'],
+    [() => waterChangeFraction(1, -1), 'target', 'Target concentration must not be negative'],
+    [() => waterChangesNeeded(-1, 0), 'current', 'Current concentration must not be negative'],
+    [() => waterChangesNeeded(1, -1), 'target', 'Target concentration must not be negative'],
+    [() => waterChangesNeeded(1, 0.5, Number.NaN), 'maxFraction', 'maxFraction must be a finite number'],
+    [() => waterChangesNeeded(1, 0.5, 0), 'maxFraction', 'maxFraction must be between 0 and 1'],
+    [() => waterChangesNeeded(1, 0.5, 1.01), 'maxFraction', 'maxFraction must be between 0 and 1'],
+    [() => turnoverPerHour(-1, 10), 'totalPumpFlowLph', 'Pump flow must not be negative'],
+    [() => turnoverPerHour(1, 0), 'volumeL', 'Volume must be greater than zero'],
+    [() => waterfallFlowLph(0), 'spillwayWidthM', 'Spillway width must be greater than zero'],
+    [() => topUpLitresToMm(-1, 1), 'litres', 'Top-up must not be negative'],
+    [() => topUpLitresToMm(1, 0), 'surfaceAreaM2', 'Surface area must be greater than zero'],
+    [() => mmToTopUpLitres(-1, 1), 'mm', 'Level rise must not be negative'],
+    [() => mmToTopUpLitres(1, 0), 'surfaceAreaM2', 'Surface area must be greater than zero'],
+    [() => dailyWaterLossMm('x' as never), 'levelReadings', 'levelReadings must be a list'],
+    [() => dailyWaterLossMm([{ at: 5 as never, levelMm: 0 }]), 'levelReadings[0].at', 'Reading time is not a valid date'],
+    [() => dailyWaterLossMm([{ at: '2025-06-01', levelMm: 0 }, { at: '2025-06-02', levelMm: Number.NaN }]), 'levelReadings[1].levelMm', 'Water level must be a finite number'],
+    [() => dailyWaterLossMm([{ at: '2025-06-01', levelMm: 0, addedMm: -1 }]), 'levelReadings[0].addedMm', 'Water added must not be negative'],
+    [() => waterLossStatus(Number.NaN), 'mmPerDay', 'Water loss must be a finite number'],
+    [() => waterLossStatus(1, 0), 'allowanceMmPerDay', 'Evaporation allowance must be greater than zero'],
+    [() => dosingSuggestions(null as never), 'input', 'input is required'],
+    [() => dosingSuggestions('x' as never), 'input', 'input is required'],
+    [() => dosingSuggestions({ reading: {}, volumeL: 0, ranges: {} }), 'volumeL', 'Volume must be greater than zero'],
+    [() => dosingSuggestions({ reading: {}, volumeL: 10, ranges: {}, topUpLitres: -5 }), 'topUpLitres', 'Top-up must not be negative'],
+    [() => dosingSuggestions({ reading: {}, volumeL: 10, ranges: {}, pressureKPa: 20 }), 'pressureKPa', 'Air pressure must be between 50 kPa and 110 kPa'],
+  ])('%#: %s', (fn, field, message) => {
+    expect(error(fn)).toEqual([field, message])
+  })
+  it('the dechlorinator\'s top-up names its own field', () => {
+    expect(error(() => dechlorinatorDose(-1, rate))).toEqual(['topUpLitres', 'Volume must not be negative'])
+  })
+})
+
+describe('water-change steps and water loss: boundaries (C: dilution; common practice for the allowance)', () => {
+  it('steps at exact powers of ⅔, one full change, none needed', () => {
+    expect(waterChangesNeeded(1, (2 / 3) ** 2)).toBe(2)
+    expect(waterChangesNeeded(1, (2 / 3) ** 2 * 0.999)).toBe(3)
+    expect(waterChangesNeeded(1, 0, 1)).toBe(1)
+    expect(waterChangesNeeded(1, 0.5, 1)).toBe(1)
+    expect(waterChangesNeeded(0.5, 0.5)).toBe(0)
+    expect(waterChangesNeeded(1, 0.5, 0.5)).toBe(1)
+  })
+  it('a top-up made at the last reading is not counted (it came after the last level)', () => {
+    const readings = [{ at: '2025-06-01T00:00:00Z', levelMm: 0, addedMm: 10 }, { at: '2025-06-11T00:00:00Z', levelMm: -20, addedMm: 40 }]
+    expect(dailyWaterLossMm(readings)).toBeCloseTo(3, 12) // (0 − (−20) + 10) / 10 days
+    expect(dailyWaterLossMm([{ at: '2025-06-01T00:00:00Z', levelMm: 0, addedMm: null as never }, { at: '2025-06-02T00:00:00Z', levelMm: -1 }])).toBeCloseTo(1, 12)
+  })
+  it('loss exactly at the allowance is ok, exactly at twice it is watch', () => {
+    expect(waterLossStatus(2, 2)).toBe('ok')
+    expect(waterLossStatus(4, 2)).toBe('watch')
+    expect(waterLossStatus(4.0001, 2)).toBe('act')
+  })
+  it('bicarbonate and salt for no rise, and water changes for nothing to dilute', () => {
+    expect(bicarbonateForKH(1000, 3, 3)).toBe(0)
+    expect(saltToTarget(1000, 2, 2)).toBe(0)
+    expect(waterChangeFraction(0.25, 0.25)).toBe(0)
+  })
+  it('thiosulfate: the pentahydrate carries 5 H2O (18.015 g/mol each)', () => {
+    const anhydrous = thiosulfatePerChlorine('sulfate')
+    expect((thiosulfatePerChlorine('sulfate', true) - anhydrous) * 4 * 70.9).toBeCloseTo(5 * 18.015, 1)
+    expect(thiosulfatePerChlorine('tetrathionate', false)).toBeCloseTo(8 * anhydrous, 9) // 2 mol per Cl2 against ¼ mol
+  })
+})
+
+describe('dosingSuggestions: the words and numbers of each suggestion, in each system', () => {
+  const koi = DEFAULT_PROFILES.koi_pond.ranges
+  const get = (l: DosingSuggestion[], k: string) => l.find(s => s.key === k)!
+
+  it('KH buffer: reason, amount text, and the daily split in the system\'s units', () => {
+    const us = dosingSuggestions({ reading: { khMgL: 60 }, volumeL: 5000, ranges: koi, unitSystem: 'us' })[0]!
+    expect(us.reason).toBe('KH 60 mg/L is below the target of 120: sodium bicarbonate raises it and steadies pH')
+    expect(us.amountText).toBe('1.1 lb') // 504 g / 453.59237 = 1.11 lb
+    expect(us.priority).toBe(4)
+    expect(us.cautions.slice(0, 3)).toEqual([
+      'Raise KH by no more than about 1 dKH (18 mg/L) a day (common practice): split this into 4 daily doses of about 4.5 oz',
+      'Dissolve it in a bucket of pond water and spread it around the pond',
+      'Retest KH and pH the next day',
+    ])
+    const metric = dosingSuggestions({ reading: { khMgL: 60 }, volumeL: 5000, ranges: koi })[0]!
+    expect(metric.amountText).toBe('505 g')
+    expect(metric.cautions[0]).toMatch(/4 daily doses of about 125 g$/)
+  })
+  it('KH: exactly 2 dKH to raise takes 2 days; under 1 dKH is one dose; at the target nothing; the act level when no target', () => {
+    const ranges = { khMgL: { target: 30 + dkhToMgLCaCO3(2), source: 'x', sourceKind: 'common practice' as const } }
+    const two = dosingSuggestions({ reading: { khMgL: 30 }, volumeL: 1000, ranges })[0]!
+    expect(two.inputs.days).toBe(2)
+    const one = dosingSuggestions({ reading: { khMgL: 110 }, volumeL: 1000, ranges: koi })[0]!
+    expect(one.inputs.days).toBe(1)
+    expect(one.cautions[0]).toBe('Raise KH by no more than about 1 dKH (18 mg/L) a day (common practice)')
+    expect(dosingSuggestions({ reading: { khMgL: 120 }, volumeL: 1000, ranges: koi })).toEqual([])
+    const actOnly = dosingSuggestions({ reading: { khMgL: 10 }, volumeL: 1000, ranges: { khMgL: { actBelow: 20, source: 'x', sourceKind: 'published' } } })[0]!
+    expect(actOnly.inputs.toKhMgL).toBe(20)
+  })
+  it('ammonia: the un-ionized wording when only NH3 is over; its inputs; the default target is half the limit', () => {
+    const s = get(dosingSuggestions({ reading: { totalAmmoniaMgL: 0.2, pH: 8.8, temperatureC: 28 }, volumeL: 1000, ranges: koi }), 'water_change_ammonia')
+    expect(s.reason).toMatch(/^Un-ionized ammonia 0\.\d{3} mg\/L is above 0\.02: as a first step/)
+    expect(s.inputs).toMatchObject({ pH: 8.8, temperatureC: 28, currentTanMgLasN: 0.2 })
+    expect(s.inputs.nh3MgL).toBeCloseTo(0.2 * unionizedAmmoniaFraction(8.8, 28) * 17.031 / 14.007, 12) // Emerson et al. 1975
+    const noPh = get(dosingSuggestions({ reading: { totalAmmoniaMgL: 0.6 }, volumeL: 1000, ranges: { totalAmmoniaMgL: { watchAbove: 0.4, source: 'x', sourceKind: 'common practice' } } }), 'water_change_ammonia')
+    expect(noPh.inputs.targetTanMgLasN).toBeCloseTo(0.2, 12)
+    expect(Object.keys(noPh.inputs)).not.toContain('nh3MgL')
+    expect(noPh.reason).toMatch(/^Total ammonia 0\.6 mg\/L as N is above 0\.4/)
+    expect(get(dosingSuggestions({ reading: { totalAmmoniaMgL: 0.6, pH: 7, temperatureC: 15 }, volumeL: 1000, ranges: { nh3MgL: { watchAbove: 0.5, source: 'x', sourceKind: 'common practice' } } }), 'water_change_ammonia')).toBeUndefined()
+  })
+  it('ammonia exactly at its limit is not over it (strict, as the evaluation)', () => {
+    const tan = 0.25
+    const nh3 = tan * unionizedAmmoniaFraction(7.5, 20) * (17.031 / 14.007)
+    const ranges = { totalAmmoniaMgL: { watchAbove: 0.25, source: 'x', sourceKind: 'common practice' as const }, nh3MgL: { watchAbove: nh3 * 1.0000001, source: 'x', sourceKind: 'common practice' as const } }
+    expect(dosingSuggestions({ reading: { totalAmmoniaMgL: tan, pH: 7.5, temperatureC: 20 }, volumeL: 1000, ranges }).map(s => s.key)).toEqual([])
+    expect(dosingSuggestions({ reading: { totalAmmoniaMgL: 0, pH: 7.5, temperatureC: 20 }, volumeL: 1000, ranges: koi })).toEqual([])
+  })
+  it('nitrite: the change alone, with the same water as an ammonia change, at the limit, and with a target above the reading', () => {
+    const alone = get(dosingSuggestions({ reading: { nitriteMgL: 0.3 }, volumeL: 3000, ranges: koi, unitSystem: 'us' }), 'water_change_nitrite')
+    expect(alone.reason).toBe('Nitrite 0.3 mg/L is above 0.1: as a first step, change about a third of the water (264 US gal); about 5 changes in all, retesting between them, to bring nitrite down to 0.05 mg/L')
+    expect(alone.inputs).toMatchObject({ currentNitriteMgL: 0.3, targetNitriteMgL: 0.05, steps: 5 })
+    expect(alone.product).toBe('clean water (partial water change)')
+    expect(alone.cautions.slice(0, 3)).toEqual([
+      'Dechlorinate the new water and match its temperature to the pond water',
+      'Change no more than about a third of the water at a time (common practice)',
+      'Retest after each change and find the cause (overfeeding, too many fish, or a filter that is not keeping up)',
+    ])
+    const both = get(dosingSuggestions({ reading: { nitriteMgL: 0.3, totalAmmoniaMgL: 0.5 }, volumeL: 3000, ranges: koi }), 'water_change_nitrite')
+    expect(both.reason).toMatch(/\(the same changes as for ammonia, not extra ones\)$/)
+    expect(dosingSuggestions({ reading: { nitriteMgL: 0.1 }, volumeL: 3000, ranges: koi })).toEqual([])
+    const high = { nitriteMgL: { watchAbove: 0.1, target: 0.5, source: 'x', sourceKind: 'common practice' as const } }
+    expect(dosingSuggestions({ reading: { nitriteMgL: 0.3 }, volumeL: 3000, ranges: high }).map(s => s.key)).toEqual(['feeding'])
+  })
+  it('a target of zero: several changes, never done by dilution alone', () => {
+    const ranges = { nitriteMgL: { watchAbove: 0, target: 0, source: 'x', sourceKind: 'common practice' as const } }
+    const s = get(dosingSuggestions({ reading: { nitriteMgL: 0.3 }, volumeL: 3000, ranges }), 'water_change_nitrite')
+    expect(s.reason).toMatch(/; several changes in all, retesting between them,/)
+    expect(s.inputs.steps).toBe('several')
+  })
+  it('salt: measured salt in the reason, the chloride it reaches (SRAC 462), and the feature\'s salt limit', () => {
+    const measured = get(dosingSuggestions({ reading: { nitriteMgL: 0.5, saltGL: 0.001 }, volumeL: 10_000, ranges: koi, fish: true }), 'salt_for_nitrite')
+    expect(measured.reason).toBe('Nitrite 0.5 mg/L with chloride 1 mg/L: raise chloride to at least 10 × nitrite (5 mg/L) so that nitrite harms the fish less (SRAC 462)')
+    expect(measured.inputs.saltMeasured).toBe('yes')
+    expect(saltGLToChlorideMgL(measured.inputs.targetSaltGL as number)).toBeCloseTo(5, 9)
+    expect(measured.amount).toBeCloseTo(saltToTarget(10_000, 0.001, measured.inputs.targetSaltGL as number), 12)
+    // 100 mg/L nitrite needs 1,000 mg/L chloride: 1,000 / 606.6 = 1.65 g/L salt, above a limit of 1 g/L
+    const limited = { ...koi, saltGL: { watchAbove: 1, source: 'x', sourceKind: 'common practice' as const } }
+    const us = get(dosingSuggestions({ reading: { nitriteMgL: 100 }, volumeL: 10_000, ranges: limited, fish: true, unitSystem: 'us' }), 'salt_for_nitrite')
+    expect(us.cautions[0]).toBe('This would take salt to 0.16 %, above this feature\'s limit of 0.1 %: change water instead')
+    const metric = get(dosingSuggestions({ reading: { nitriteMgL: 100 }, volumeL: 10_000, ranges: limited, fish: true }), 'salt_for_nitrite')
+    expect(metric.cautions[0]).toBe('This would take salt to 1.6 g/L, above this feature\'s limit of 1 g/L: change water instead')
+    expect(metric.amountText).toBe('16.5 kg')
+    expect(us.amountText).toBe('36.3 lb') // 16,485 g / 453.59237
+    const roomy = { ...koi, saltGL: { watchAbove: 0.0083, source: 'x', sourceKind: 'common practice' as const } } // target 0.00824 g/L
+    expect(get(dosingSuggestions({ reading: { nitriteMgL: 0.5 }, volumeL: 10_000, ranges: roomy, fish: true }), 'salt_for_nitrite').cautions[0]).toMatch(/^Test the salt level first/)
+  })
+  it('salt: none when chloride is exactly 10 × nitrite (SRAC 462: at least 10 : 1)', () => {
+    const saltGL = 0.5 // 303.3 mg/L chloride, so nitrite 30.33 mg/L (a value chosen so that 10 × nitrite is exact in floating point)
+    const nitrite = saltGLToChlorideMgL(saltGL) / 10
+    expect(10 * nitrite).toBe(saltGLToChlorideMgL(saltGL))
+    expect(dosingSuggestions({ reading: { nitriteMgL: nitrite, saltGL }, volumeL: 1000, ranges: {}, fish: true })).toEqual([])
+  })
+  it('dechlorinator: the top-up and the label rate in the system\'s units', () => {
+    const rate = { amount: 5, unit: 'mL', perLitres: 400 }
+    const us = dosingSuggestions({ reading: {}, volumeL: 10_000, ranges: koi, topUpLitres: 1200, dechlorinatorRate: rate, unitSystem: 'us' })[0]!
+    expect(us.reason).toBe('317 US gal of tap water was added: dechlorinate it at the label rate of 0.2 fl oz per 106 US gal')
+    expect(us.amountText).toBe('0.5 fl oz')
+    expect(us.cautions.slice(0, 2)).toEqual([
+      'Add the dechlorinator as the new water goes in',
+      'If the tap water is chloraminated, neutralising it releases ammonia (about 0.2 mg/L as N for each 1 mg/L of chloramine as Cl2): retest ammonia after a big top-up',
+    ])
+    const none = dosingSuggestions({ reading: {}, volumeL: 10_000, ranges: koi, topUpLitres: 1200, unitSystem: 'us' })[0]!
+    expect(none).toMatchObject({ amount: null, unit: '', amountText: null, product: 'dechlorinator', inputs: { topUpLitres: 1200 } })
+    expect(none.reason).toBe('Enter the dechlorinator\'s label rate to work out the dose for 317 US gal of top-up water')
+    expect(dosingSuggestions({ reading: {}, volumeL: 10_000, ranges: koi, topUpLitres: null as never })).toEqual([])
+    expect(dosingSuggestions({ reading: {}, volumeL: 10_000, ranges: koi, topUpLitres: 0, dechlorinatorRate: rate })).toEqual([])
+  })
+  it('a feature without ranges gets only what needs none', () => {
+    const out = dosingSuggestions({ reading: { khMgL: 10, nitriteMgL: 0.5, temperatureC: 8 }, volumeL: 1000, ranges: null as never, fish: true })
+    expect(out.map(s => s.key)).toEqual(['salt_for_nitrite', 'feeding'])
   })
 })

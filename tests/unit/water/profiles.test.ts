@@ -133,3 +133,64 @@ describe('mergeRanges', () => {
     expect(rangesForKind('koi_pond', { khMgL: { target: 140, source: 'owner', sourceKind: 'common practice' } }).khMgL!.target).toBe(140)
   })
 })
+
+describe('profile names and where each bound comes from, as a person reads it', () => {
+  it('keys and names', () => {
+    expect(Object.values(DEFAULT_PROFILES).map(p => [p.key, p.name])).toEqual([
+      ['koi_pond', 'Koi pond'], ['water_garden', 'Water garden'], ['pondless', 'Pondless feature (no fish)'],
+    ])
+  })
+  it('a range with bounds from two sources names each with its bounds', () => {
+    expect(koi.pH!.source).toBe('Stone & Thomforde, Univ. of Arkansas at Pine Bluff extension: act below, act above; common practice, no published source (koi ponds 7.0–8.5): watch below, watch above')
+    expect(koi.nh3MgL!.source).toBe('common practice, no published source (chronic limit): watch above; UF/IFAS FA16 (Francis-Floyd et al.), Ammonia in Aquatic Systems: act above')
+    expect(koi.khMgL!.source).toBe('SRAC, Liming Ponds for Aquaculture; US EPA National Recommended Water Quality Criteria: act below; common practice, no published source (koi ponds at least 100 mg/L): watch below; common practice, no published source: target')
+    expect(koi.totalAmmoniaMgL!.source).toBe('common practice, no published source')
+    expect(koi.nitriteMgL!.boundSources!.watchAbove!.source).toBe('common practice, no published source (0 in an established pond)')
+    expect(koi.saltGL!.boundSources!.watchAbove!.source).toBe('common practice, no published source (standing pond level 0.1–0.3 %)')
+    expect(koi.temperatureC!.boundSources!.watchAbove!.source).toMatch(/^common practice, no published source \(koi comfortable about 15–25/)
+    expect(pondless.pH!.source).toBe('common practice, no published source (no fish)')
+    expect(pondless.chlorineMgL!.source).toBe('common practice, no published source (no fish; after the US EPA total residual chlorine criterion)')
+    expect(pondless.saltGL!.source).toBe('common practice, no published source (plants)')
+    expect(garden.khMgL!.source).toMatch(/: act below; common practice, no published source: watch below, target$/)
+  })
+  it('every bound of the defaults is there with its value (the rest of the table)', () => {
+    expect(koi.nitrateMgL!.boundSources!.actAbove!.sourceKind).toBe('common practice')
+    expect(garden.pH!.boundSources!.watchAbove!.sourceKind).toBe('common practice')
+    expect(pondless.khMgL).toMatchObject({ actBelow: 20, sourceKind: 'published' })
+    expect(koi.doSaturationPct!.sourceKind).toBe('common practice')
+    expect(koi.phosphateMgL!.boundSources!.watchAbove!.sourceKind).toBe('common practice')
+    expect(koi.chlorineMgL!.boundSources).toEqual({ actAbove: { source: expect.stringContaining('EPA'), sourceKind: 'published' } })
+  })
+  it('an unknown kind names the field and the kind', () => {
+    try { profileKeyForKind('lake' as never); throw new Error('did not throw') }
+    catch (e) { expect([(e as WaterInputError).field, (e as Error).message]).toEqual(['kind', 'Unknown feature kind "lake"']) }
+  })
+})
+
+describe('mergeRanges: sources of overridden bounds', () => {
+  it('a bound the override sets takes the override\'s own bound source, else its source', () => {
+    const base = { pH: { watchAbove: 8, source: 'a', sourceKind: 'published' as const } }
+    const merged = mergeRanges(base, { pH: { watchBelow: 7, boundSources: { watchBelow: { source: 'b', sourceKind: 'common practice' } } } as never })
+    expect(merged.pH).toEqual({ watchAbove: 8, watchBelow: 7, source: 'a', sourceKind: 'common practice', boundSources: { watchBelow: { source: 'b', sourceKind: 'common practice' } } })
+    // an override without any source leaves the bound without one, and keeps the base's words
+    expect(mergeRanges(base, { pH: { watchBelow: 7 } as never }).pH).toEqual({ watchAbove: 8, watchBelow: 7, source: 'a', sourceKind: 'published' })
+  })
+  it('a parameter only the override has, and copies that do not share the base\'s objects', () => {
+    expect(mergeRanges({}, { pH: { watchBelow: 7, source: 'o', sourceKind: 'common practice' } })).toEqual({
+      pH: { watchBelow: 7, source: 'o', sourceKind: 'common practice', boundSources: { watchBelow: { source: 'o', sourceKind: 'common practice' } } },
+    })
+    const copy = mergeRanges(koi, {})
+    expect(copy.pH).toEqual(koi.pH)
+    expect(copy.pH).not.toBe(koi.pH)
+    expect(copy.pH!.boundSources).not.toBe(koi.pH!.boundSources)
+    const plain = { ghMgL: { watchBelow: 50, source: 'x', sourceKind: 'common practice' as const } }
+    expect(mergeRanges(plain, null)).toEqual(plain)
+    expect(Object.keys(mergeRanges(plain, null).ghMgL!)).not.toContain('boundSources')
+  })
+  it('a published bound overridden by the owner makes the range common practice', () => {
+    const merged = mergeRanges(koi, { chlorineMgL: { actAbove: 0.01, source: 'owner', sourceKind: 'common practice' } })
+    expect(merged.chlorineMgL).toMatchObject({ actAbove: 0.01, source: 'owner', sourceKind: 'common practice' })
+    const again = mergeRanges(koi, { chlorineMgL: { actAbove: 0.02, source: 'lab sheet', sourceKind: 'published' } })
+    expect(again.chlorineMgL!.sourceKind).toBe('published')
+  })
+})

@@ -103,3 +103,42 @@ describe('input range (WaterInputError)', () => {
     expect(field(() => featureSurfaceAreaM2({ kind: 'rectangle', lengthM: 2, widthM: 2, depthM: 0.5, shelf: { lengthM: -1, widthM: 1, depthM: 0.2 } }))).toBe('shape.shelf.lengthM')
   })
 })
+
+describe('input errors a person reads: the field and its label', () => {
+  const error = (fn: () => unknown) => {
+    try { fn() } catch (e) { expect(e).toBeInstanceOf(WaterInputError); return [(e as WaterInputError).field, (e as Error).message] }
+    throw new Error('did not throw')
+  }
+  const shelf = (s: Partial<{ lengthM: number, widthM: number, depthM: number }>) => ({ kind: 'rectangle', lengthM: 4, widthM: 3, depthM: 1, shelf: { lengthM: 2, widthM: 0.5, depthM: 0.3, ...s } }) as FeatureShape
+  it.each([
+    [null, 'shape', 'shape is required'],
+    ['round', 'shape', 'shape is required'],
+    [{ kind: 'hexagon' }, 'shape.kind', 'Unknown shape "hexagon"'],
+    [{ kind: 'rectangle', lengthM: 0, widthM: 1, depthM: 1 }, 'shape.lengthM', 'Length must be greater than zero'],
+    [{ kind: 'rectangle', lengthM: 1, widthM: -1, depthM: 1 }, 'shape.widthM', 'Width must be greater than zero'],
+    [{ kind: 'rectangle', lengthM: 1, widthM: 1, depthM: Number.NaN }, 'shape.depthM', 'Depth must be a finite number'],
+    [{ kind: 'circle', diameterM: 0, depthM: 1 }, 'shape.diameterM', 'Diameter must be greater than zero'],
+    [{ kind: 'circle', diameterM: 1, depthM: 0 }, 'shape.depthM', 'Depth must be greater than zero'],
+    [{ kind: 'oval', lengthM: 0, widthM: 1, depthM: 1 }, 'shape.lengthM', 'Length must be greater than zero'],
+    [{ kind: 'oval', lengthM: 1, widthM: 0, depthM: 1 }, 'shape.widthM', 'Width must be greater than zero'],
+    [{ kind: 'oval', lengthM: 1, widthM: 1, depthM: 0 }, 'shape.depthM', 'Depth must be greater than zero'],
+    [{ kind: 'irregular', lengthM: 0, widthM: 1, avgDepthM: 1 }, 'shape.lengthM', 'Average length must be greater than zero'],
+    [{ kind: 'irregular', lengthM: 1, widthM: 0, avgDepthM: 1 }, 'shape.widthM', 'Average width must be greater than zero'],
+    [{ kind: 'irregular', lengthM: 1, widthM: 1, avgDepthM: 0 }, 'shape.avgDepthM', 'Average depth must be greater than zero'],
+    [{ kind: 'rectangle', lengthM: 1, widthM: 1, depthM: 1, shelf: 'edge' }, 'shape.shelf', 'shelf must be an object'],
+    [shelf({ lengthM: 0 }), 'shape.shelf.lengthM', 'Shelf length must be greater than zero'],
+    [shelf({ widthM: 0 }), 'shape.shelf.widthM', 'Shelf width must be greater than zero'],
+    [shelf({ depthM: -0.1 }), 'shape.shelf.depthM', 'Shelf depth must not be negative'],
+    [shelf({ depthM: 1.01 }), 'shape.shelf.depthM', 'A shelf cannot be deeper than the feature'],
+    [shelf({ lengthM: 6, widthM: 2.01 }), 'shape.shelf', 'A shelf cannot cover more area than the water surface'],
+  ])('%#: %j', (shape, field, message) => {
+    expect(error(() => featureVolumeLitres(shape as FeatureShape))).toEqual([field, message])
+    expect(error(() => featureSurfaceAreaM2(shape as FeatureShape))).toEqual([field, message])
+  })
+  it('a shelf exactly as deep as the feature, or covering the whole surface, is allowed; a null shelf is none', () => {
+    expect(featureVolumeLitres(shelf({ depthM: 1 }))).toBeCloseTo(12_000, 9)
+    expect(featureVolumeLitres(shelf({ lengthM: 6, widthM: 2, depthM: 0.5 }))).toBeCloseTo(6000, 9) // 12 m² × (1 − 0.5) m
+    expect(featureVolumeLitres({ kind: 'circle', diameterM: 2, depthM: 1, shelf: null as never })).toBeCloseTo(Math.PI * 1000, 9)
+    expect(featureSurfaceAreaM2({ kind: 'oval', lengthM: 4, widthM: 2, depthM: 1, shelf: null as never })).toBeCloseTo(2 * Math.PI, 12)
+  })
+})
