@@ -17,11 +17,8 @@ export interface DoseLine {
   productId?: string | null
 }
 
-/** Wherever a chemical is dosed: protect yourself and never combine products. */
-export const CHEMICAL_CAUTIONS = [
-  'Wear gloves and eye protection when handling pond chemicals',
-  'Never mix products: add one at a time, each dissolved in its own bucket of pond water',
-] as const
+/** Wherever a chemical is dosed: the one list (shared/utils/safety.ts). */
+export const CHEMICAL_CAUTIONS = CHEMICAL_SAFETY
 
 /** Lines that add a chemical (not water, feeding or aeration advice). */
 export const isChemical = (line: Pick<DoseLine, 'key' | 'amount'>) =>
@@ -38,6 +35,12 @@ export function doseText(line: Pick<DoseLine, 'amount' | 'unit' | 'amountText'>,
 export function withChemicalCautions(line: Pick<DoseLine, 'key' | 'amount' | 'cautions'>): string[] {
   const own = line.cautions ?? []
   if (!isChemical(line)) return own
-  const has = (c: string) => own.some(o => o.toLowerCase().includes(c.split(' ').slice(0, 2).join(' ').toLowerCase()))
-  return [...own, ...CHEMICAL_CAUTIONS.filter(c => !has(c))]
+  return withCautions(own, CHEMICAL_CAUTIONS)
+}
+
+/** `own` followed by those of `more` it does not already say (compared without the final stop). */
+export function withCautions(own: readonly string[], more: readonly string[]): string[] {
+  const bare = (c: string) => c.replace(/[.!?]$/, '').toLowerCase()
+  const said = new Set(own.map(bare))
+  return [...own, ...more.filter(c => !said.has(bare(c)))]
 }

@@ -1,6 +1,7 @@
 // The e-mails an alert scan sends: one message per person per feature per scan, naming every
 // result that needs action, in words that match the severity, with the company's number
 // wherever a customer is told to call, and (for the owner) a link to book a retest visit.
+import { CHEMICAL_SAFETY, SAFETY_CAUTIONS, safetySentence } from '../../shared/utils/safety'
 import { createHash } from 'node:crypto'
 import { and, desc, eq, inArray, sql } from 'drizzle-orm'
 import { alerts, companies, customerContacts, users, visits, waterFeatures } from '../db/schema'
@@ -13,10 +14,7 @@ import { ownerEmails } from './recipients'
 type Alert = typeof alerts.$inferSelect
 
 /** Cautions every alert e-mail carries (PRODUCT.md, Safety). */
-export const ALERT_CAUTIONS = [
-  'Follow product labels; wear gloves and eye protection with any treatment and never mix products.',
-  'Pumps, aerators and lights near water only on a ground-fault (GFCI/RCD) protected circuit.',
-]
+export const ALERT_CAUTIONS = [...CHEMICAL_SAFETY, SAFETY_CAUTIONS.electrical].map(safetySentence)
 
 /** "Call us on (555) 014-2290" — or, with no number on file, wording that promises none. */
 export function callUs(phone: string, when: string): string {

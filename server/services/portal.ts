@@ -63,7 +63,7 @@ export async function portalFeatures(actor: SessionUser) {
       return {
         id: f.id, name: f.name, kind: f.kind, siteId: f.siteId, siteName, volumeL: f.measuredVolumeL ?? f.computedVolumeL, fish: f.fish,
         equipment: f.equipment, ranges, nextVisit, due,
-        latest: last ? { id: last.id, takenAt: last.takenAt, source: last.source, evaluation } : null,
+        latest: last ? { id: last.id, takenAt: last.takenAt, source: last.source, evaluation, nh3MgL: last.nh3MgL } : null,
         advice: adviceFor(evaluation, previous, nextVisit, { unitSystem: reader.unitSystem, phone: reader.phone, nh3WatchMgL: ranges.nh3MgL?.watchAbove ?? null, computed: last ? { nh3MgL: last.nh3MgL, nh3AsNMgL: null, nh3Fraction: null, doSaturationMgL: null, doSaturationPct: last.doSaturationPct } : undefined }),
         phone: reader.phone,
       }

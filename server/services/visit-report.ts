@@ -1,3 +1,4 @@
+import { WATER_ADVICE_SAFETY, safetySentence } from '../../shared/utils/safety'
 import { and, asc, eq, gt, inArray } from 'drizzle-orm'
 import { VISIT_TYPE_LABELS } from '../../shared/types/schedule'
 import { formatDose } from '../../shared/utils/water/format'
@@ -10,13 +11,7 @@ import { contactEmails } from './recipients'
 
 const STATUS_WORDS = { ok: 'in range', watch: 'worth watching', act: 'needs action' } as const
 
-export const REPORT_CAUTIONS = [
-  'Read and follow each product\'s label; the amounts here are advice worked out from the readings and your pond\'s volume.',
-  'Wear gloves and eye protection when you handle any pond treatment, and never mix products: add each on its own.',
-  'Keep pond treatments away from children and pets.',
-  'Salt and medications can harm plants and some fish.',
-  'Pumps and lights belong on a ground-fault (GFCI/RCD) protected circuit; leave electrical work to a licensed electrician.',
-]
+export const REPORT_CAUTIONS = WATER_ADVICE_SAFETY.map(safetySentence)
 
 /** Storage key of a photo's thumbnail (see services/photos.ts). */
 export const thumbKey = (photoId: string) => `photos/${photoId}/thumb.jpg`

@@ -10,13 +10,14 @@ import type { Tx } from '../utils/db'
 /** Water at least this deep (metres) counts as deep: nobody works alone beside it (common practice, no source). */
 export const DEEP_WATER_M = 0.6
 
+/** Checklist items, worded from the one list of cautions (shared/utils/safety.ts). */
 export const SAFETY_ITEMS = {
-  chemicals: 'Safety: gloves and eye protection on before handling any treatment; never mix products, add each on its own',
-  notAlone: 'Safety: deep water here: do not work alone; someone knows where you are and when you will be back',
-  ice: 'Safety: stay off ice, however thick it looks; work from the bank',
-  fish: 'Fish held in pond water in a shaded, aerated container, and moved gently',
-  fishBack: 'Fish acclimated on the way back: float them until the temperatures match, then release',
-  medications: 'Treatments: switch the UV clarifier off while a medication is in the water, and add beneficial bacteria only after the treatment ends (many medications harm the filter\'s bacteria)',
+  chemicals: `Safety: ${SAFETY_CAUTIONS.gloves.toLowerCase()}; ${SAFETY_CAUTIONS.neverMix.toLowerCase()}`,
+  notAlone: `Safety: ${SAFETY_CAUTIONS.notAlone.toLowerCase()}`,
+  ice: `Safety: ${SAFETY_CAUTIONS.ice.toLowerCase()}`,
+  fish: SAFETY_CAUTIONS.fishHold,
+  fishBack: SAFETY_CAUTIONS.fishBack,
+  medications: `Treatments: ${SAFETY_CAUTIONS.uvMedication.toLowerCase()}; ${SAFETY_CAUTIONS.bacteriaMedication.toLowerCase()}`,
 } as const
 
 /** Visit types at which a technician may dose a chemical (tests, top-ups, treatments). */

@@ -58,10 +58,5 @@ function dosingInput(input: DosingSuggestionsInput, unitSystem: UnitSystem): Dos
   return withUnits
 }
 
-export const WATER_CAUTIONS = [
-  'Dosing figures are advice computed from the readings and volume shown; read and follow each product\'s label first.',
-  'Wear gloves and eye protection when handling any treatment, and never mix products: add each on its own.',
-  'Keep chemicals away from children and pets.',
-  'Salt and medications can harm plants and some fish.',
-  'Pumps, lights and heaters belong on a ground-fault (GFCI/RCD) protected circuit installed to local code by a licensed electrician.',
-]
+/** Under every water check (the one list of cautions: shared/utils/safety.ts). */
+export const WATER_CAUTIONS = WATER_ADVICE_SAFETY.map(safetySentence)

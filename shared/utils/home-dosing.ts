@@ -7,6 +7,7 @@ import { bicarbonateForKH, doseFromLabelRate, MAX_KH_RISE_DKH_PER_DAY, saltToTar
 import { formatDose, type UnitSystem } from './water/format'
 import { formatParameter } from './water/parameters'
 import { ammoniaHoldsBackKh, callUsToday } from './water/rules'
+import { SAFETY_CAUTIONS, safetySentence } from './safety'
 import { mgLCaCO3ToDkh } from './water/units'
 
 export type HomeTreatment = 'dechlorinator' | 'bacteria' | 'salt' | 'kh_buffer'
@@ -21,7 +22,8 @@ export const CALL_US_KH_MGL = 18
 export const HOME_CAUTIONS = {
   label: 'Read the product label first and follow it; these amounts are worked out from its label rate and your pond\'s volume.',
   children: 'Keep treatments out of reach of children and pets.',
-  gloves: 'Wear gloves and eye protection, and never mix products.',
+  gloves: safetySentence(SAFETY_CAUTIONS.gloves),
+  neverMix: safetySentence(SAFETY_CAUTIONS.neverMix),
   salt: 'Salt harms many pond plants and some fish (some catfish, sturgeon and others): do not salt a pond with them. Salt does not evaporate; only water changes lower it.',
   kh: 'Raise KH by no more than about 1 dKH a day; dissolve it in a bucket of pond water first.',
   dechlorinator: 'Treat the whole top-up volume, every time you add tap water.',
@@ -58,7 +60,7 @@ export interface HomeDose {
 
 export function homeDose(i: HomeDoseInput): HomeDose {
   const system = i.unitSystem ?? 'metric'
-  const cautions: string[] = [HOME_CAUTIONS.label, HOME_CAUTIONS.children, HOME_CAUTIONS.gloves]
+  const cautions: string[] = [HOME_CAUTIONS.label, HOME_CAUTIONS.children, HOME_CAUTIONS.gloves, HOME_CAUTIONS.neverMix]
   const notes: string[] = []
   const dose = (amount: number, unit: string, callUs: string | null): HomeDose =>
     ({ amount, unit, amountText: formatDose(amount, unit, system), notes, cautions, callUs })

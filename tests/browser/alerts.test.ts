@@ -2,7 +2,7 @@ import { randomUUID } from 'node:crypto'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser } from 'playwright-core'
 import { api, baseUrl, demo, tokenFor } from '../helpers/api'
-import { launch, shot, signInThroughForm, VIEWPORTS } from '../helpers/browser'
+import { launch, shot, signInThroughForm, VIEWPORTS, waitForHydration } from '../helpers/browser'
 import { visitForTessToday } from '../helpers/visits'
 
 let browser: Browser
@@ -54,6 +54,7 @@ describe('a retest visit from an alert', () => {
     await signInThroughForm(page, demo.owner)
     await page.waitForURL(url => url.pathname === '/')
     await page.goto(`${baseUrl()}/alerts?retest=${alert!.id}`)
+    await waitForHydration(page)
     await page.getByText('Book a water retest at this feature on the next working day?').waitFor()
     await shot(page, 'alerts-retest-offer-phone')
     await page.getByRole('button', { name: 'Book a retest visit' }).first().click()

@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser } from 'playwright-core'
 import { api, baseUrl, demo, tokenFor } from '../helpers/api'
-import { allowPageErrors, launch, shot, signInThroughForm, VIEWPORTS } from '../helpers/browser'
+import { allowPageErrors, launch, shot, signInThroughForm, VIEWPORTS, waitForHydration } from '../helpers/browser'
 import { waitForMail } from '../helpers/mail'
 
 let browser: Browser
@@ -21,6 +21,8 @@ describe('billing in the browser', () => {
     await shot(op, 'billing-invoices-desktop')
 
     await op.goto(`${baseUrl()}/invoices/new`)
+
+    await waitForHydration(op)
     await op.getByLabel('Find the customer').fill('Whitcombe')
     await op.getByLabel('Customer', { exact: true }).locator('option', { hasText: 'Priya Whitcombe' }).waitFor({ state: 'attached' })
     await op.getByLabel('Customer', { exact: true }).selectOption({ label: 'Priya Whitcombe' })

@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser } from 'playwright-core'
 import { api, baseUrl, demo, tokenFor } from '../helpers/api'
-import { launch, shot, signInThroughForm, VIEWPORTS } from '../helpers/browser'
+import { launch, shot, signInThroughForm, VIEWPORTS, waitForHydration } from '../helpers/browser'
 import { visitForTessToday } from '../helpers/visits'
 import { VISIT_TYPE_LABELS, type VisitType } from '../../shared/types/schedule'
 
@@ -24,6 +24,7 @@ describe('plans, contracts and the schedule in the browser', () => {
       await signInThroughForm(page, demo.owner)
       await page.waitForURL(url => url.pathname === '/')
       await page.goto(`${baseUrl()}/plans/new`)
+      await waitForHydration(page)
       await page.getByLabel('Plan name').fill(planName)
       await page.getByLabel(/^Price/).fill('900.00')
       // Visit 1: every two weeks on Tuesdays, May–September (the builder's default months).
@@ -56,6 +57,7 @@ describe('plans, contracts and the schedule in the browser', () => {
       const firstRoutine = (await api(`/api/visits?contractId=${contractId}&pageSize=50`, { token: owner })).body.rows.find((v: { visitType: string }) => v.visitType === 'routine')
       expect(firstRoutine.scheduledOn.startsWith(`${nextYear}-05`)).toBe(true)
       await page.goto(`${baseUrl()}/schedule`)
+      await waitForHydration(page)
       await page.getByLabel('Go to date').fill(firstRoutine.scheduledOn)
       const card = page.getByRole('button', { name: new RegExp(`${customerName}.*Routine maintenance`) }).first()
       await card.waitFor()

@@ -5,19 +5,11 @@ import { api, demo, tokenFor, uniqueEmail, baseUrl } from '../helpers/api'
 import { launch, signInThroughForm, VIEWPORTS, waitForHydration } from '../helpers/browser'
 import { visitForTessToday } from '../helpers/visits'
 import { waitForMail } from '../helpers/mail'
-import { dosingSuggestions } from '../../shared/utils/water/dosing'
+import { foreignUnits } from '../helpers/units-scan'
 
 // Every figure a person reads is in the company's units (PRODUCT.md, "Advice that does no harm").
 // A technician types a test in the company's units on the visit page; the page, the owner's
 // water check, the range editor and the customer's portal then show only that system's units.
-
-// A minimal units scanner, local to this file until the shared `tests/helpers/units-scan.ts`
-// lands: a number followed by a unit of the other system.
-const METRIC_ONLY = /(?<![\w/])\d[\d,]*(?:\.\d+)?\s?(°C|mL|L|kg|g|cm|mm|m|kPa|ppt|g\/L)(?![\w/²])/g
-const US_ONLY = /(?<![\w/])\d[\d,]*(?:\.\d+)?\s?(°F|US gal|gal|fl oz|oz|lb|ft|in)(?![\w²])/g
-function foreignUnits(text: string, system: 'us' | 'metric'): string[] {
-  return [...text.matchAll(system === 'us' ? METRIC_ONLY : US_ONLY)].map(m => m[0])
-}
 
 const SHOTS = '/tmp/h3-shots'
 mkdirSync(SHOTS, { recursive: true })
@@ -36,33 +28,8 @@ afterAll(async () => {
 
 const visibleText = (page: Page) => page.locator('body').innerText()
 
-// The dosing lines' sentences (reason, cautions) are worded by the advice engine. An engine that
-// words them in the company's units says so by sending `amountText`; until that engine is on this
-// branch, those sentences (marked `data-engine-words`) are left out of the scan, and everything
-// the pages word themselves is scanned. With the engine, the whole page is scanned.
-const ENGINE_WORDS_UNITS = 'amountText' in (dosingSuggestions({ reading: {}, volumeL: 1000, ranges: {}, topUpLitres: 100, dechlorinatorRate: { amount: 5, unit: 'mL', perLitres: 100 } })[0] ?? {})
-// The same for the evaluate endpoint's reasons (marked `data-server-words`): scanned once the
-// server words them in the company's units, which `serverWordsUnits` asks it.
-async function scannedText(page: Page, selector = 'body', serverInUnits = true): Promise<string> {
-  const leaveOut = [ENGINE_WORDS_UNITS ? '' : '[data-engine-words]', serverInUnits ? '' : '[data-server-words]'].filter(Boolean).join(', ')
-  if (!leaveOut) return page.locator(selector).first().innerText()
-  // Hidden for the moment of reading, so that innerText (what a person sees) leaves them out.
-  return page.locator(selector).first().evaluate((el, sel) => {
-    const marked = [...el.querySelectorAll<HTMLElement>(sel)]
-    marked.forEach(e => e.style.setProperty('display', 'none'))
-    const text = el.innerText
-    marked.forEach(e => e.style.removeProperty('display'))
-    return text
-  }, leaveOut)
-}
-
-/** Whether the evaluate endpoint words its reasons in the company's units yet. */
-async function serverWordsUnits(featureId: string, system: 'us' | 'metric'): Promise<boolean> {
-  const r = await api('/api/water/evaluate', { method: 'POST', token: owner, body: { featureId, reading: { temperatureC: 26 } } })
-  const reasons = JSON.stringify(r.body.parameters ?? [])
-  if (!reasons.includes(system === 'us' ? '°F' : '°C')) console.warn(`the evaluate endpoint does not word its reasons in ${system} units yet: they are left out of the scan`)
-  return reasons.includes(system === 'us' ? '°F' : '°C')
-}
+/** What a person reads in a part of the page. */
+const scannedText = (page: Page, selector = 'body') => page.locator(selector).first().innerText()
 
 /** The scenario of issue 14: a koi pond at 26 °C (78.8 °F), pH 8.2, total ammonia 2.0 mg/L, KH 90 mg/L. */
 const TEST_VALUES = {
@@ -134,6 +101,7 @@ for (const system of ['us', 'metric'] as const) {
 
         // The owner's water check on the feature page, the same test.
         await page.goto(`${baseUrl()}/features/${v.featureId}`)
+        await waitForHydration(page)
         await page.getByLabel(`Water temperature (${t.temperatureUnit})`, { exact: true }).fill(t.temperature)
         await page.getByLabel('pH', { exact: true }).fill('8.2')
         await page.getByLabel(/^Total ammonia/).fill('2.0')
@@ -147,7 +115,7 @@ for (const system of ['us', 'metric'] as const) {
         expect(check).not.toMatch(/volumeL|currentTan|MgL|topUpLitres/)
         expect(check).toMatch(new RegExp(`Volume [\\d,]+ ${t.volumeUnit}`))
         await checkBox.evaluate(el => el.setAttribute('data-scan', 'water-check'))
-        expect(foreignUnits(await scannedText(page, '[data-scan="water-check"]', await serverWordsUnits(v.featureId, system)), system), 'units of the other system in the water check').toEqual([])
+        expect(foreignUnits(await scannedText(page, '[data-scan="water-check"]'), system), 'units of the other system in the water check').toEqual([])
         expect(check).toMatch(/gloves and eye protection/i)
         await page.getByTestId('dose-inputs').first().scrollIntoViewIfNeeded()
         await shoot(page, `water-check-${system}-${viewport}`)
@@ -175,10 +143,8 @@ for (const system of ['us', 'metric'] as const) {
       }
     })
 
-    // The report e-mail is worded by the server (services/visit-report), which still writes °C and
-    // litres for a US company: a todo there until it words every figure in the company's units
-    // (it runs as written once the `todo` is taken off). The metric company's e-mail is checked now.
-    ;(system === 'us' ? it.todo : it)('the report e-mail of that visit carries only the company\'s units', async () => {
+    // The report e-mail is worded by the server (services/visit-report).
+    it('the report e-mail of that visit carries only the company\'s units', async () => {
       expect(typed, 'the visit of the test above').not.toBeNull()
       const done = await api(`/api/visits/${typed!.visitId}/finish`, { method: 'POST', token: await tokenFor(demo.tess), body: {} })
       expect(done.status, JSON.stringify(done.body)).toBe(200)
@@ -194,6 +160,7 @@ for (const system of ['us', 'metric'] as const) {
       await signInThroughForm(page, demo.owner)
       await page.waitForURL(url => url.pathname === '/')
       await page.goto(`${baseUrl()}/features/${v.featureId}`)
+      await waitForHydration(page)
       const heading = system === 'us' ? 'Water temperature (°F)' : 'Water temperature (°C)'
       // The range table beside the form is in the same units.
       const row = await page.locator('tr[data-range="temperatureC"]').innerText()

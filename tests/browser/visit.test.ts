@@ -4,7 +4,7 @@ import sharp from 'sharp'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { baseUrl, demo } from '../helpers/api'
-import { allowPageErrors, ARTIFACTS, launch, shot, signInThroughForm, VIEWPORTS } from '../helpers/browser'
+import { allowPageErrors, ARTIFACTS, launch, shot, signInThroughForm, VIEWPORTS, waitForHydration } from '../helpers/browser'
 import { waitForMail } from '../helpers/mail'
 import { visitForTessToday } from '../helpers/visits'
 import { foreignUnits } from '../helpers/units-scan'
@@ -96,6 +96,7 @@ describe('the treatment catalogue', () => {
     await signInThroughForm(page, demo.owner)
     await page.waitForURL(url => url.pathname === '/')
     await page.goto(`${baseUrl()}/settings/treatments`)
+    await waitForHydration(page)
     await page.getByRole('button', { name: 'Add', exact: true }).click()
     await page.getByText('Name the product by what it is').waitFor()
     await page.getByLabel('Name (what it is, no brand)').fill('Barley straw extract (liquid)')

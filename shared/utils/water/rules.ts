@@ -3,6 +3,7 @@
 // things first in the same way: oxygen, then ammonia and nitrite, then pH stability, then KH, then
 // looks. Thresholds here are common practice (no published source) unless a source is named.
 import type { AdvicePriority, Parameter, RangeTable } from '../../types/water'
+import { CHEMICAL_SAFETY, SAFETY_CAUTIONS } from '../safety'
 
 /** First things first: 1 oxygen, 2 ammonia and nitrite, 3 pH stability, 4 KH, 5 looks and the rest. */
 export const PRIORITY = { oxygen: 1, ammonia: 2, ph: 3, kh: 4, other: 5 } as const satisfies Record<string, AdvicePriority>
@@ -66,16 +67,16 @@ export function ammoniaHoldsBackKh(nh3MgL: number | null | undefined, nh3WatchMg
   return nh3MgL >= (nh3WatchMgL ?? DEFAULT_NH3_WATCH_MGL)
 }
 
-/** Safety cautions shown wherever a chemical is dosed (PRODUCT.md, Safety). */
+/** Safety cautions shown wherever a chemical is dosed (the one list: shared/utils/safety.ts). */
 export const SAFETY = {
-  label: 'Read and follow the product label',
-  children: 'Keep chemicals away from children and pets',
-  gloves: 'Wear gloves and eye protection',
-  neverMix: 'Never mix products',
+  label: SAFETY_CAUTIONS.label,
+  children: SAFETY_CAUTIONS.children,
+  gloves: SAFETY_CAUTIONS.gloves,
+  neverMix: SAFETY_CAUTIONS.neverMix,
 } as const
 
 /** Every dosed chemical carries these four, in this order. */
-export const CHEMICAL_CAUTIONS: readonly string[] = [SAFETY.gloves, SAFETY.neverMix, SAFETY.label, SAFETY.children]
+export const CHEMICAL_CAUTIONS: readonly string[] = CHEMICAL_SAFETY
 
 /** Salt's cautions (PRODUCT.md, Safety; standing levels are common practice, CHECKS.md §5). */
 export const SALT_CAUTIONS = {
@@ -87,12 +88,12 @@ export const SALT_CAUTIONS = {
 
 /** Medication cautions, for any treatment of the fish (PRODUCT.md, Safety). */
 export const MEDICATION_CAUTIONS = {
-  bacteria: 'Medications can harm the beneficial bacteria in the filter: watch ammonia and nitrite during a treatment',
-  uv: 'Switch a UV clarifier off during a medication treatment, as the medication\'s label says',
+  bacteria: SAFETY_CAUTIONS.bacteriaMedication,
+  uv: SAFETY_CAUTIONS.uvMedication,
 } as const
 
 /** Electrical safety for pumps and aerators beside water (PRODUCT.md, Safety). */
-export const ELECTRICAL_CAUTION = 'Run pumps and aerators only on a ground-fault (GFCI/RCD) protected circuit, installed to local code by a licensed electrician'
+export const ELECTRICAL_CAUTION = SAFETY_CAUTIONS.electrical
 
 /** Water change cautions (PRODUCT.md, "Advice that does no harm"). */
 export const WATER_CHANGE_CAUTIONS = {

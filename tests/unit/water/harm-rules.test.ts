@@ -206,14 +206,14 @@ describe('safety cautions wherever a chemical is dosed (PRODUCT.md, Safety)', ()
     }
     expect(CHEMICAL_CAUTIONS).toEqual([SAFETY.gloves, SAFETY.neverMix, SAFETY.label, SAFETY.children])
     expect(SAFETY.gloves).toBe('Wear gloves and eye protection')
-    expect(SAFETY.neverMix).toBe('Never mix products')
+    expect(SAFETY.neverMix).toMatch(/^Never mix products/)
     for (const t of ['dechlorinator', 'salt', 'kh_buffer'] as const) {
-      expect(homeDose({ treatment: t, volumeL: 4000, label: { amount: 5, unit: 'mL', perLitres: 400 }, topUpL: 100 }).cautions.join(' ')).toMatch(/gloves and eye protection, and never mix products/)
+      expect(homeDose({ treatment: t, volumeL: 4000, label: { amount: 5, unit: 'mL', perLitres: 400 }, topUpL: 100 }).cautions.join(' ')).toMatch(/gloves and eye protection\. Never mix products/)
     }
   })
   it('medications: beneficial bacteria and the UV clarifier', () => {
-    expect(MEDICATION_CAUTIONS.bacteria).toMatch(/harm the beneficial bacteria/)
-    expect(MEDICATION_CAUTIONS.uv).toMatch(/Switch a UV clarifier off during a medication treatment/)
+    expect(MEDICATION_CAUTIONS.bacteria).toMatch(/harm the filter's beneficial bacteria/)
+    expect(MEDICATION_CAUTIONS.uv).toMatch(/Switch the UV clarifier off while a medication is in the water/)
   })
 })
 
