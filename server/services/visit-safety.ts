@@ -1,6 +1,7 @@
 // The safety items a visit's checklist carries where they apply (PRODUCT.md, Safety). Every
 // checklist a visit gets — generated from a plan, booked from a request or from an alert — passes
 // through `withSafety`, so the cautions live here once. Thresholds are common practice, no source.
+import { SAFETY_CAUTIONS } from '../../shared/utils/safety'
 import { and, eq, isNull } from 'drizzle-orm'
 import type { ChecklistItem, VisitType } from '../../shared/types/schedule'
 import type { FeatureShape } from '../../shared/types/water'

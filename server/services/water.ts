@@ -1,3 +1,4 @@
+import { WATER_ADVICE_SAFETY, safetySentence } from '../../shared/utils/safety'
 import type { EvaluateRequest } from '../../shared/schemas/water'
 import {
   DEFAULT_PROFILES, dosingSuggestions, mergeRanges, profileKeyForKind, WaterInputError, type DosingSuggestionsInput,
