@@ -1,0 +1,194 @@
+// The season planner: a day and a technician for each visit.
+//
+// 1. Locked visits stay where a person put them and count against capacity.
+// 2. Territories: customers go to technicians by area (grid cells joined by a capacity-limited
+//    k-means starting from the technicians' homes); a customer served before keeps that
+//    technician. Every visit of a customer goes to the territory's technician while there is room.
+// 3. Within a territory each customer gets a weekday (a second capacity-limited k-means, one
+//    group per working weekday), so each weekday's stops lie in one part of the territory.
+// 4. Visits are placed most constrained first (shortest window, then earliest), each on the day of
+//    its window with the lowest cost: extra driving by cheapest insertion into that day's route,
+//    plus a penalty off the customer's weekday and per day away from the preferred day — on a day
+//    the technician works, with room for the visit and all the driving (capacity is never
+//    exceeded). When the territory's technician has no room, the other technicians are tried.
+// 5. Each day's route is checked with route-order.ts; what found no place is listed with the reason.
+// Deterministic: no randomness, every tie goes to the earlier index.
+import { greatCircleKm, type RouteCoordinate } from '../route-order'
+import { balancedGroups, gridCells, spreadCentres, type AreaItem } from './areas'
+import { PlanBook } from './plan-book'
+import { plannerWeekday, preparePlannerInput, type PreparedInput } from './prepare'
+import type { PlannerInput, SeasonPlan } from './types'
+
+/** Cost weights, in road km of extra driving (tuning values, no source). */
+export const PLANNER_WEIGHTS = Object.freeze({
+  /** A visit on another weekday than its customer's: worth this much extra driving to avoid. */
+  offWeekdayKm: 8,
+  /** Each day away from the preferred day. */
+  perDayFromPreferredKm: 0.5,
+  /** Another technician than the one who took this customer's earlier overflow. */
+  otherTechnicianKm: 5,
+  /** Grid cell size for grouping sites into areas. */
+  areaCellKm: 2,
+})
+
+interface Territories {
+  techOfCustomer: Int32Array
+  weekdayOfCustomer: Int32Array
+  centres: RouteCoordinate[]
+}
+
+function customerItems(P: PreparedInput): AreaItem[] {
+  const items = P.customers.map(() => ({ lat: 0, lon: 0, weight: 0, n: 0 }))
+  P.visits.forEach((v, i) => {
+    const it = items[P.customerOf[i]!]!
+    it.lat += v.lat
+    it.lon += v.lon
+    it.n++
+    if (P.lockedTech[i]! < 0) it.weight += P.duration[i]!
+  })
+  return items.map(it => ({ lat: it.lat / it.n, lon: it.lon / it.n, weight: it.weight }))
+}
+
+/** Customer → technician: who served them before, else whose locked visits they have most, else by area. */
+function territories(P: PreparedInput, customers: AreaItem[]): Territories {
+  const T = P.techs.length
+  const techOfCustomer = new Int32Array(customers.length).fill(-1)
+  const lockedCount = new Map<number, Map<number, number>>()
+  for (let v = 0; v < P.visits.length; v++) {
+    if (P.lockedTech[v]! < 0) continue
+    const c = P.customerOf[v]!
+    const m = lockedCount.get(c) ?? new Map<number, number>()
+    m.set(P.lockedTech[v]!, (m.get(P.lockedTech[v]!) ?? 0) + 1)
+    lockedCount.set(c, m)
+  }
+  const baseLoad = new Array<number>(T).fill(0)
+  customers.forEach((c, i) => {
+    let t = P.previous[i]!
+    if (t < 0 && lockedCount.has(i)) {
+      let best = -1
+      for (const [tech, n] of [...lockedCount.get(i)!].sort((a, b) => a[0] - b[0])) if (best < 0 || n > lockedCount.get(i)!.get(best)!) best = tech
+      t = best
+    }
+    if (t >= 0) {
+      techOfCustomer[i] = t
+      baseLoad[t]! += c.weight
+    }
+  })
+
+  const free = customers.map((_, i) => i).filter(i => techOfCustomer[i]! < 0)
+  const cells = gridCells(free.map(i => customers[i]!), PLANNER_WEIGHTS.areaCellKm)
+  const areas: AreaItem[] = []
+  const cellItems: number[][] = []
+  free.forEach((c, k) => {
+    const a = cells[k]!
+    const it = customers[c]!
+    if (!areas[a]) {
+      areas[a] = { lat: 0, lon: 0, weight: 0 }
+      cellItems[a] = []
+    }
+    const w = Math.max(it.weight, 1e-6)
+    areas[a]!.lat += it.lat * w
+    areas[a]!.lon += it.lon * w
+    areas[a]!.weight += w
+    cellItems[a]!.push(c)
+  })
+  for (const a of areas) {
+    a.lat /= a.weight
+    a.lon /= a.weight
+  }
+
+  const availMinutes = P.techs.map((t, i) => t.capacityMinutes * P.available[i]!.reduce((s, x) => s + x, 0))
+  const totalAvail = availMinutes.reduce((a, b) => a + b, 0) || 1
+  const totalLoad = customers.reduce((s, c) => s + c.weight, 0)
+  // A fair share of the work, a little over; or, when there is room to spare, most of a technician's time.
+  const limits = availMinutes.map(m => Math.max(totalLoad * (m / totalAvail) * 1.05, m * 0.7))
+  // Start from the technicians' homes; a home shared with an earlier technician starts from a spread point instead.
+  const spread = spreadCentres(areas, T)
+  const starts = P.techs.map((t, i) => {
+    const shared = P.techs.slice(0, i).some(o => greatCircleKm(o.home, t.home) < 1)
+    return shared && spread[i] ? spread[i]! : t.home
+  })
+  const group = areas.length ? balancedGroups(areas, starts, limits, baseLoad) : new Int32Array(0)
+  cellItems.forEach((members, a) => {
+    for (const c of members) techOfCustomer[c] = group[a]!
+  })
+
+  // Weekdays within each territory.
+  const weekdayOfCustomer = new Int32Array(customers.length)
+  const centres: RouteCoordinate[] = P.techs.map(t => t.home)
+  for (let t = 0; t < T; t++) {
+    const members = customers.map((_, i) => i).filter(i => techOfCustomer[i] === t)
+    if (!members.length) continue
+    const items = members.map(i => customers[i]!)
+    const w = items.reduce((s, it) => s + Math.max(it.weight, 1e-6), 0)
+    centres[t] = { lat: items.reduce((s, it) => s + it.lat * Math.max(it.weight, 1e-6), 0) / w, lon: items.reduce((s, it) => s + it.lon * Math.max(it.weight, 1e-6), 0) / w }
+    const weekdays = [...new Set(P.techs[t]!.workingDays)].sort((a, b) => a - b)
+    if (!weekdays.length) continue
+    const load = items.reduce((s, it) => s + it.weight, 0)
+    const k = Math.min(weekdays.length, items.length)
+    const g = balancedGroups(items, spreadCentres(items, k), new Array(k).fill((load / k) * 1.1))
+    members.forEach((c, j) => {
+      weekdayOfCustomer[c] = weekdays[g[j]!]!
+    })
+  }
+  return { techOfCustomer, weekdayOfCustomer, centres }
+}
+
+/** The best day of v's window with technician t, by cost; null when no day has room. */
+function bestDay(P: PreparedInput, book: PlanBook, v: number, t: number, weekday: number, extraKm: number): { d: number, cost: number, at: NonNullable<ReturnType<PlanBook['fits']>> } | null {
+  let best: { d: number, cost: number, at: NonNullable<ReturnType<PlanBook['fits']>> } | null = null
+  const avail = P.available[t]!
+  for (let d = P.earliest[v]!; d <= P.latest[v]!; d++) {
+    if (!avail[d]) continue
+    const at = book.fits(v, t, d)
+    if (!at) continue
+    const cost = at.deltaKm * P.detourFactor + extraKm
+      + (weekday && plannerWeekday(P.firstDay + d) !== weekday ? PLANNER_WEIGHTS.offWeekdayKm : 0)
+      + Math.abs(d - P.preferred[v]!) * PLANNER_WEIGHTS.perDayFromPreferredKm
+    if (!best || cost < best.cost) best = { d, cost, at }
+  }
+  return best
+}
+
+/**
+ * Plans a season (or any span): a day and a technician for every visit that fits, each listed
+ * once in `placed` or in `unplaced` with the reason. Pure and deterministic: the same input gives
+ * the same plan. Throws PlannerInputError naming the field on unusable input.
+ */
+export function planSeason(input: PlannerInput): SeasonPlan {
+  const P = preparePlannerInput(input)
+  const book = new PlanBook(P)
+  book.placeLocked()
+  const customers = customerItems(P)
+  const { techOfCustomer, weekdayOfCustomer, centres } = territories(P, customers)
+  const spillTech = new Int32Array(customers.length).fill(-1)
+
+  const order: number[] = []
+  for (let v = 0; v < P.visits.length; v++) if (P.lockedTech[v]! < 0) order.push(v)
+  order.sort((a, b) => (P.latest[a]! - P.earliest[a]!) - (P.latest[b]! - P.earliest[b]!) || P.earliest[a]! - P.earliest[b]! || a - b)
+
+  const T = P.techs.length
+  for (const v of order) {
+    const c = P.customerOf[v]!
+    const home = techOfCustomer[c]!
+    let pick = home >= 0 ? bestDay(P, book, v, home, weekdayOfCustomer[c]!, 0) : null
+    let pickTech = home
+    if (!pick) {
+      // Overflow: the other technicians, nearest territory first; the one who took this customer's earlier overflow is preferred.
+      const others = Array.from({ length: T }, (_, t) => t).filter(t => t !== home)
+        .map(t => ({ t, km: greatCircleKm(customers[c]!, centres[t]!) }))
+        .sort((a, b) => a.km - b.km || a.t - b.t)
+      for (const { t } of others) {
+        const extra = spillTech[c]! >= 0 && spillTech[c] !== t ? PLANNER_WEIGHTS.otherTechnicianKm : 0
+        const cand = bestDay(P, book, v, t, 0, extra)
+        if (cand && (!pick || cand.cost < pick.cost)) {
+          pick = cand
+          pickTech = t
+        }
+      }
+      if (pick) spillTech[c] = pickTech
+    }
+    if (pick) book.place(v, pickTech, pick.d, pick.at)
+  }
+  return book.finish()
+}
