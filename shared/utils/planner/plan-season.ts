@@ -49,6 +49,21 @@ function customerItems(P: PreparedInput): AreaItem[] {
   return items.map(it => ({ lat: it.lat / it.n, lon: it.lon / it.n, weight: it.weight }))
 }
 
+/** The busiest week's visit minutes (by preferred day) over that week's technician minutes. */
+function peakUtilisation(P: PreparedInput): number {
+  const weeks = Math.ceil(P.nDays / 7)
+  const load = new Float64Array(weeks)
+  const room = new Float64Array(weeks)
+  for (let v = 0; v < P.visits.length; v++) if (P.lockedTech[v]! < 0) load[Math.floor(P.preferred[v]! / 7)]! += P.duration[v]!
+  P.techs.forEach((t, i) => {
+    const a = P.available[i]!
+    for (let d = 0; d < P.nDays; d++) if (a[d]) room[Math.floor(d / 7)]! += t.capacityMinutes
+  })
+  let peak = 0
+  for (let w = 0; w < weeks; w++) if (load[w]! > 0) peak = Math.max(peak, room[w]! > 0 ? load[w]! / room[w]! : Infinity)
+  return Number.isFinite(peak) ? peak : 0
+}
+
 /** Customer → technician: who served them before, else whose locked visits they have most, else by area. */
 function territories(P: PreparedInput, customers: AreaItem[]): Territories {
   const T = P.techs.length
@@ -100,8 +115,12 @@ function territories(P: PreparedInput, customers: AreaItem[]): Territories {
   const availMinutes = P.techs.map((t, i) => t.capacityMinutes * P.available[i]!.reduce((s, x) => s + x, 0))
   const totalAvail = availMinutes.reduce((a, b) => a + b, 0) || 1
   const totalLoad = customers.reduce((s, c) => s + c.weight, 0)
-  // A fair share of the work, a little over; or, when there is room to spare, most of a technician's time.
-  const limits = availMinutes.map(m => Math.max(totalLoad * (m / totalAvail) * 1.05, m * 0.7))
+  // A fair share of the work, a little over; or, when even the busiest week has room to spare, more
+  // (so territories follow geography), keeping a quarter of the busiest week for driving.
+  const utilisation = totalLoad / totalAvail
+  const peak = peakUtilisation(P)
+  const roomy = peak > 0 ? (0.75 * utilisation) / peak : 1
+  const limits = availMinutes.map(m => Math.max(totalLoad * (m / totalAvail) * 1.05, m * roomy))
   // Start from the technicians' homes; a home shared with an earlier technician starts from a spread point instead.
   const spread = spreadCentres(areas, T)
   const starts = P.techs.map((t, i) => {
