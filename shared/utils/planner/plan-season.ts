@@ -16,7 +16,7 @@
 import { greatCircleKm, type RouteCoordinate } from '../route-order'
 import { balancedGroups, gridCells, spreadCentres, type AreaItem } from './areas'
 import { PlanBook } from './plan-book'
-import { plannerWeekday, preparePlannerInput, type PreparedInput } from './prepare'
+import { plannerDayNumber, plannerWeekday, preparePlannerInput, type PreparedInput } from './prepare'
 import type { PlannerInput, SeasonPlan } from './types'
 
 /** Cost weights, in road km of extra driving (tuning values, no source). */
@@ -27,6 +27,8 @@ export const PLANNER_WEIGHTS = Object.freeze({
   perDayFromPreferredKm: 0.5,
   /** Another technician than the one who took this customer's earlier overflow. */
   otherTechnicianKm: 5,
+  /** Re-planning: the day and technician a visit has now, worth this much driving to keep. */
+  stayKm: 10,
   /** Grid cell size for grouping sites into areas. */
   areaCellKm: 2,
 })
@@ -154,7 +156,7 @@ function territories(P: PreparedInput, customers: AreaItem[]): Territories {
 }
 
 /** The best day of v's window with technician t, by cost; null when no day has room. */
-function bestDay(P: PreparedInput, book: PlanBook, v: number, t: number, weekday: number, extraKm: number): { d: number, cost: number, at: NonNullable<ReturnType<PlanBook['fits']>> } | null {
+function bestDay(P: PreparedInput, book: PlanBook, v: number, t: number, weekday: number, extraKm: number, stayDay = -1): { d: number, cost: number, at: NonNullable<ReturnType<PlanBook['fits']>> } | null {
   let best: { d: number, cost: number, at: NonNullable<ReturnType<PlanBook['fits']>> } | null = null
   const avail = P.available[t]!
   for (let d = P.earliest[v]!; d <= P.latest[v]!; d++) {
@@ -164,6 +166,7 @@ function bestDay(P: PreparedInput, book: PlanBook, v: number, t: number, weekday
     const cost = at.deltaKm * P.detourFactor + extraKm
       + (weekday && plannerWeekday(P.firstDay + d) !== weekday ? PLANNER_WEIGHTS.offWeekdayKm : 0)
       + Math.abs(d - P.preferred[v]!) * PLANNER_WEIGHTS.perDayFromPreferredKm
+      - (d === stayDay ? PLANNER_WEIGHTS.stayKm : 0)
     if (!best || cost < best.cost) best = { d, cost, at }
   }
   return best
@@ -175,7 +178,25 @@ function bestDay(P: PreparedInput, book: PlanBook, v: number, t: number, weekday
  * the same plan. Throws PlannerInputError naming the field on unusable input.
  */
 export function planSeason(input: PlannerInput): SeasonPlan {
+  return planSeasonKeeping(input, new Map())
+}
+
+/**
+ * planSeason, preferring to leave visits where they are now (`current`: visit id → day and
+ * technician): re-planning a plan that still works moves little. For replanDateRange.
+ */
+export function planSeasonKeeping(input: PlannerInput, current: ReadonlyMap<string, { day: string, technicianId: string }>): SeasonPlan {
   const P = preparePlannerInput(input)
+  const stayTech = new Int32Array(P.visits.length).fill(-1)
+  const stayDay = new Int32Array(P.visits.length).fill(-1)
+  P.visits.forEach((v, i) => {
+    const c = current.get(v.id)
+    const t = c ? P.techIndex.get(c.technicianId) : undefined
+    if (c && t !== undefined) {
+      stayTech[i] = t
+      stayDay[i] = plannerDayNumber(c.day) - P.firstDay
+    }
+  })
   const book = new PlanBook(P)
   book.placeLocked()
   const customers = customerItems(P)
@@ -190,8 +211,15 @@ export function planSeason(input: PlannerInput): SeasonPlan {
   for (const v of order) {
     const c = P.customerOf[v]!
     const home = techOfCustomer[c]!
-    let pick = home >= 0 ? bestDay(P, book, v, home, weekdayOfCustomer[c]!, 0) : null
+    let pick = home >= 0 ? bestDay(P, book, v, home, weekdayOfCustomer[c]!, 0, stayTech[v] === home ? stayDay[v] : -1) : null
     let pickTech = home
+    if (stayTech[v]! >= 0 && stayTech[v] !== home) {
+      const stay = bestDay(P, book, v, stayTech[v]!, 0, 0, stayDay[v])
+      if (stay && (!pick || stay.cost < pick.cost)) {
+        pick = stay
+        pickTech = stayTech[v]!
+      }
+    }
     if (!pick) {
       // Overflow: the other technicians, nearest territory first; the one who took this customer's earlier overflow is preferred.
       const others = Array.from({ length: T }, (_, t) => t).filter(t => t !== home)

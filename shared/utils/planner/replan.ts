@@ -2,7 +2,7 @@
 // unplaced whose window reaches into it) were planned again. Nothing is applied: the caller gets
 // the diff and decides.
 import { isLocalDate, type LocalDate } from '../recurrence'
-import { planSeason } from './plan-season'
+import { planSeasonKeeping } from './plan-season'
 import { PlannerInputError, type PlannerInput, type PlannerMove, type PlannerVisit, type ReplanPreview } from './types'
 
 export interface CurrentPlacement {
@@ -17,7 +17,8 @@ export interface CurrentPlacement {
  * whose window reaches into it, are planned again within the range (their windows clipped to it).
  * A visit placed inside the range but outside its own window stays put. Unplaced visits whose
  * window misses the range are left out. Customers keep the technician who has most of their
- * current visits unless `input.previousAssignments` says otherwise. Inputs are not changed.
+ * current visits unless `input.previousAssignments` says otherwise, and a visit stays on its
+ * current day when that is about as good (PLANNER_WEIGHTS.stayKm). Inputs are not changed.
  */
 export function replanDateRange(input: PlannerInput, current: readonly CurrentPlacement[], range: { from: LocalDate, to: LocalDate }): ReplanPreview {
   if (!range || typeof range.from !== 'string' || !isLocalDate(range.from)) throw new PlannerInputError('range.from', 'must be a date as YYYY-MM-DD')
@@ -60,7 +61,8 @@ export function replanDateRange(input: PlannerInput, current: readonly CurrentPl
     const inRange = c ? c.day >= range.from && c.day <= range.to : true
     const earliest = v.windowEarliest > range.from ? v.windowEarliest : range.from
     const latest = v.windowLatest < range.to ? v.windowLatest : range.to
-    if (c && (!inRange || earliest > latest)) {
+    const outsideOwnWindow = c ? c.day < v.windowEarliest || c.day > v.windowLatest : false
+    if (c && (!inRange || outsideOwnWindow || earliest > latest)) {
       visits.push({ ...v, locked: { day: c.day, technicianId: c.technicianId } })
       continue
     }
@@ -70,7 +72,8 @@ export function replanDateRange(input: PlannerInput, current: readonly CurrentPl
     replanned.add(v.id)
   }
 
-  const plan = planSeason({ ...input, visits, previousAssignments: { ...previous, ...input.previousAssignments } })
+  const keep = new Map([...now].filter(([id]) => replanned.has(id)).map(([id, c]) => [id, { day: c.day, technicianId: c.technicianId }]))
+  const plan = planSeasonKeeping({ ...input, visits, previousAssignments: { ...previous, ...input.previousAssignments } }, keep)
   const placedNow = new Map(plan.placed.map(p => [p.visitId, p]))
   const why = new Map(plan.unplaced.map(u => [u.visitId, u.reason]))
   const moves: PlannerMove[] = []

@@ -44,5 +44,5 @@ export function unplacedReason(P: PreparedInput, homes: readonly RouteCoordinate
     return { code: 'too-long', reason: `It takes ${Math.round(duration)} minutes plus the drive there, more than a whole working day ${when} (the longest is ${Math.round(longest)} minutes)` }
   }
   const names = working.map(t => P.techs[t]!.name ?? P.techs[t]!.id)
-  return { code: 'days-full', reason: `No room ${when}: every working day of ${listWords(names, P.techs.length)} is full` }
+  return { code: 'days-full', reason: `No room ${when}: every working day of ${listWords(names, P.techs.length)} is full (none has ${Math.round(duration)} minutes free with the driving)` }
 }
