@@ -88,6 +88,24 @@ describe('planner: one technician, more work than days', () => {
     expect(planSeason({ ...input, dateOrder: 'month-day' }).unplaced[0]!.reason).toMatch(/^No room between Apr 5 and Apr 9: every working day of Tess is full/)
   })
 
+  it('makes room for a long visit by moving a short one to another day of its window', () => {
+    // One customer, Tess works Monday to Wednesday, 100 minutes a day. The short visits take one
+    // day each first; the 90-minute visit then fits nowhere until the Monday-or-Tuesday one moves to Tuesday.
+    const one = { customerId: 'cust-1' }
+    const plan = planSeason({
+      visits: [
+        visit('x1', { ...one, durationMinutes: 30, windowEarliest: MON, windowLatest: '2027-04-06' }),
+        visit('x2', { ...one, durationMinutes: 30, windowEarliest: '2027-04-06', windowLatest: '2027-04-06' }),
+        visit('x3', { ...one, durationMinutes: 30, windowEarliest: '2027-04-07', windowLatest: '2027-04-07' }),
+        visit('y', { ...one, durationMinutes: 90, windowEarliest: MON, windowLatest: '2027-04-07' }),
+      ],
+      technicians: [tech('tess', { capacityMinutes: 100, workingDays: [1, 2, 3] })],
+    })
+    expect(plan.unplaced).toEqual([])
+    expect(Object.fromEntries(plan.placed.map(p => [p.visitId, p.day]))).toEqual({ y: MON, x1: '2027-04-06', x2: '2027-04-06', x3: '2027-04-07' })
+    expectWithinCapacity(plan)
+  })
+
   it('a visit longer than any working day is listed as too long', () => {
     const plan = planSeason({ visits: [visit('v1', { durationMinutes: 500 })], technicians: [tech('tess', { capacityMinutes: 480 })] })
     expect(plan.unplaced).toEqual([{ visitId: 'v1', code: 'too-long', reason: 'It takes 500 minutes plus the drive there, more than a whole working day between 5 Apr and 9 Apr (the longest is 480 minutes)' }])

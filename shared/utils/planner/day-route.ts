@@ -63,6 +63,18 @@ export function insertIntoDayRoute(route: DayRoute, home: RouteCoordinate, point
   route.visitMinutes += minutes
 }
 
+/** Takes stops[k] out of the route. */
+export function removeFromDayRoute(route: DayRoute, home: RouteCoordinate, points: readonly RouteCoordinate[], k: number, minutes: number): void {
+  if (k + 1 < route.stops.length) {
+    const prev = k === 0 ? home : points[route.stops[k - 1]!]!
+    route.legKm[k + 1] = greatCircleKm(prev, points[route.stops[k + 1]!]!)
+  }
+  route.stops.splice(k, 1)
+  route.legKm.splice(k, 1)
+  route.km = route.legKm.reduce((a, b) => a + b, 0)
+  route.visitMinutes -= minutes
+}
+
 export interface CheckedRoute {
   /** Visit indexes in the driving order used. */
   order: number[]

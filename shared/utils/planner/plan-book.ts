@@ -1,7 +1,7 @@
 // The plan being built: every technician-day's route, who got which visit, the capacity check,
 // and turning it into the SeasonPlan (with each day's true route checked by route-order.ts).
 import type { RouteCoordinate } from '../route-order'
-import { checkDayRoute, cheapestInsertion, emptyDayRoute, insertIntoDayRoute, type DayRoute, type Insertion } from './day-route'
+import { checkDayRoute, cheapestInsertion, emptyDayRoute, insertIntoDayRoute, removeFromDayRoute, type DayRoute, type Insertion } from './day-route'
 import { plannerDayDate, type PreparedInput } from './prepare'
 import type { PlannerDay, PlannerPlacement, PlannerUnplaced, PlannerUnplacedCode, SeasonPlan } from './types'
 import { unplacedReason } from './words'
@@ -55,6 +55,18 @@ export class PlanBook {
     insertIntoDayRoute(r, this.homes[t]!, this.input.visits, v, at ?? cheapestInsertion(r, this.homes[t]!, this.input.visits, v), this.input.duration[v]!)
     this.tech[v] = t
     this.day[v] = d
+  }
+
+  /** Takes v off its day; returns a function that puts it back exactly where it was. */
+  remove(v: number): () => void {
+    const t = this.tech[v]!
+    const d = this.day[v]!
+    const r = this.routeOf(t, d)!
+    const k = r.stops.indexOf(v)
+    removeFromDayRoute(r, this.homes[t]!, this.input.visits, k, this.input.duration[v]!)
+    this.tech[v] = -1
+    this.day[v] = -1
+    return () => this.place(v, t, d, { position: k, deltaKm: 0 })
   }
 
   /** Locked visits first, where a person put them, counting against capacity. */

@@ -15,6 +15,7 @@
 // Deterministic: no randomness, every tie goes to the earlier index.
 import { greatCircleKm, type RouteCoordinate } from '../route-order'
 import { balancedGroups, gridCells, spreadCentres, type AreaItem } from './areas'
+import type { Insertion } from './day-route'
 import { PlanBook } from './plan-book'
 import { plannerDayNumber, plannerWeekday, preparePlannerInput, type PreparedInput } from './prepare'
 import type { PlannerInput, SeasonPlan } from './types'
@@ -22,13 +23,17 @@ import type { PlannerInput, SeasonPlan } from './types'
 /** Cost weights, in road km of extra driving (tuning values, no source). */
 export const PLANNER_WEIGHTS = Object.freeze({
   /** A visit on another weekday than its customer's: worth this much extra driving to avoid. */
-  offWeekdayKm: 8,
+  offWeekdayKm: 40,
   /** Each day away from the preferred day. */
   perDayFromPreferredKm: 0.5,
   /** Another technician than the one who took this customer's earlier overflow. */
   otherTechnicianKm: 5,
-  /** Re-planning: the day and technician a visit has now, worth this much driving to keep. */
-  stayKm: 10,
+  /** Re-planning: the day and technician a visit has now, worth this much driving to keep (more than offWeekdayKm). */
+  stayKm: 60,
+  /** Repair: stops looked at in all, at most (keeps an overloaded season fast). */
+  repairBudget: 3_000_000,
+  /** Repair: technicians tried besides the territory's. */
+  repairTechnicians: 3,
   /** Grid cell size for grouping sites into areas. */
   areaCellKm: 2,
 })
@@ -156,11 +161,13 @@ function territories(P: PreparedInput, customers: AreaItem[]): Territories {
 }
 
 /** The best day of v's window with technician t, by cost; null when no day has room. */
-function bestDay(P: PreparedInput, book: PlanBook, v: number, t: number, weekday: number, extraKm: number, stayDay = -1): { d: number, cost: number, at: NonNullable<ReturnType<PlanBook['fits']>> } | null {
-  let best: { d: number, cost: number, at: NonNullable<ReturnType<PlanBook['fits']>> } | null = null
+interface DayPick { d: number, cost: number, at: Insertion }
+
+function bestDay(P: PreparedInput, book: PlanBook, v: number, t: number, weekday: number, extraKm: number, stayDay = -1, skipDay = -1): DayPick | null {
+  let best: DayPick | null = null
   const avail = P.available[t]!
   for (let d = P.earliest[v]!; d <= P.latest[v]!; d++) {
-    if (!avail[d]) continue
+    if (!avail[d] || d === skipDay) continue
     const at = book.fits(v, t, d)
     if (!at) continue
     const cost = at.deltaKm * P.detourFactor + extraKm
@@ -208,26 +215,37 @@ export function planSeasonKeeping(input: PlannerInput, current: ReadonlyMap<stri
   order.sort((a, b) => (P.latest[a]! - P.earliest[a]!) - (P.latest[b]! - P.earliest[b]!) || P.earliest[a]! - P.earliest[b]! || a - b)
 
   const T = P.techs.length
-  for (const v of order) {
+  const othersOf = new Map<number, number[]>()
+  /** The other technicians for a customer's overflow, nearest territory first. */
+  const others = (c: number, home: number) => {
+    let list = othersOf.get(c)
+    if (!list) {
+      list = Array.from({ length: T }, (_, t) => t).filter(t => t !== home)
+        .map(t => ({ t, km: greatCircleKm(customers[c]!, centres[t]!) }))
+        .sort((a, b) => a.km - b.km || a.t - b.t).map(x => x.t)
+      othersOf.set(c, list)
+    }
+    return list
+  }
+  /** The best technician-day for v (not `skipTech`'s day `skipDay`), or null. */
+  const choose = (v: number, skipTech = -1, skipDay = -1): { t: number, pick: DayPick } | null => {
     const c = P.customerOf[v]!
     const home = techOfCustomer[c]!
-    let pick = home >= 0 ? bestDay(P, book, v, home, weekdayOfCustomer[c]!, 0, stayTech[v] === home ? stayDay[v] : -1) : null
+    const skipFor = (t: number) => (t === skipTech ? skipDay : -1)
+    let pick = home >= 0 ? bestDay(P, book, v, home, weekdayOfCustomer[c]!, 0, stayTech[v] === home ? stayDay[v]! : -1, skipFor(home)) : null
     let pickTech = home
     if (stayTech[v]! >= 0 && stayTech[v] !== home) {
-      const stay = bestDay(P, book, v, stayTech[v]!, 0, 0, stayDay[v])
+      const stay = bestDay(P, book, v, stayTech[v]!, 0, 0, stayDay[v]!, skipFor(stayTech[v]!))
       if (stay && (!pick || stay.cost < pick.cost)) {
         pick = stay
         pickTech = stayTech[v]!
       }
     }
     if (!pick) {
-      // Overflow: the other technicians, nearest territory first; the one who took this customer's earlier overflow is preferred.
-      const others = Array.from({ length: T }, (_, t) => t).filter(t => t !== home)
-        .map(t => ({ t, km: greatCircleKm(customers[c]!, centres[t]!) }))
-        .sort((a, b) => a.km - b.km || a.t - b.t)
-      for (const { t } of others) {
+      // Overflow: the other technicians; the one who took this customer's earlier overflow is preferred.
+      for (const t of others(c, home)) {
         const extra = spillTech[c]! >= 0 && spillTech[c] !== t ? PLANNER_WEIGHTS.otherTechnicianKm : 0
-        const cand = bestDay(P, book, v, t, 0, extra)
+        const cand = bestDay(P, book, v, t, 0, extra, -1, skipFor(t))
         if (cand && (!pick || cand.cost < pick.cost)) {
           pick = cand
           pickTech = t
@@ -235,7 +253,51 @@ export function planSeasonKeeping(input: PlannerInput, current: ReadonlyMap<stri
       }
       if (pick) spillTech[c] = pickTech
     }
-    if (pick) book.place(v, pickTech, pick.d, pick.at)
+    return pick ? { t: pickTech, pick } : null
+  }
+
+  const unplaced: number[] = []
+  for (const v of order) {
+    const got = choose(v)
+    if (got) book.place(v, got.t, got.pick.d, got.pick.at)
+    else unplaced.push(v)
+  }
+
+  // Repair: make room for a visit that found none by moving one visit off a day of its window
+  // to another day of that visit's own window. Bounded work, so an overloaded season stays fast.
+  let budget = PLANNER_WEIGHTS.repairBudget
+  for (const v of unplaced) {
+    if (budget <= 0) break
+    const c = P.customerOf[v]!
+    const techs = [techOfCustomer[c]!, ...others(c, techOfCustomer[c]!).slice(0, PLANNER_WEIGHTS.repairTechnicians)].filter(t => t >= 0)
+    let done = false
+    for (const t of techs) {
+      for (let d = P.earliest[v]!; d <= P.latest[v]! && !done && budget > 0; d++) {
+        const r = book.routeOf(t, d)
+        if (!P.available[t]![d] || !r || r.stops.length === 0) continue
+        const need = book.usedMinutes(t, d) + P.duration[v]! - P.techs[t]!.capacityMinutes
+        for (let k = 0; k < r.stops.length && !done && budget > 0; k++) {
+          const u = r.stops[k]!
+          budget--
+          // Taking u out frees its minutes and at most its legs' driving: too little, skip it.
+          if (P.lockedTech[u]! >= 0 || P.duration[u]! + (r.legKm[k]! + (r.legKm[k + 1] ?? 0)) * P.minutesPerKm < need) continue
+          const undo = book.remove(u)
+          const at = book.fits(v, t, d)
+          if (at) {
+            book.place(v, t, d, at)
+            const alt = choose(u, t, d)
+            if (alt) {
+              book.place(u, alt.t, alt.pick.d, alt.pick.at)
+              done = true
+              break
+            }
+            book.remove(v)
+          }
+          undo()
+        }
+      }
+      if (done) break
+    }
   }
   return book.finish()
 }
