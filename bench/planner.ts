@@ -99,6 +99,22 @@ function capacityMinutes(input: PlannerInput) {
   return total
 }
 
+/** Share of the technicians' time (visits and driving) used, per month. */
+function monthlyUse(input: PlannerInput, plan: SeasonPlan) {
+  const closed = new Set(input.closedDays)
+  const room: Record<string, number> = {}
+  for (const t of input.technicians) {
+    const off = new Set(t.daysOff)
+    for (let d = Date.UTC(2027, 0, 1); d <= Date.UTC(2027, 11, 31); d += 86_400_000) {
+      const day = new Date(d).toISOString().slice(0, 10)
+      if (t.workingDays.includes(new Date(d).getUTCDay() || 7) && !closed.has(day) && !off.has(day)) room[day.slice(0, 7)] = (room[day.slice(0, 7)] ?? 0) + t.capacityMinutes
+    }
+  }
+  const used: Record<string, number> = {}
+  for (const d of plan.days) used[d.day.slice(0, 7)] = (used[d.day.slice(0, 7)] ?? 0) + d.visitMinutes + d.driveMinutes
+  return Object.fromEntries(Object.keys(room).sort().map(m => [m, Math.round(((used[m] ?? 0) / room[m]!) * 100) / 100]))
+}
+
 function summary(plan: SeasonPlan, seconds: number) {
   return { seconds, placed: plan.stats.placed, unplaced: plan.stats.unplaced, unplacedByCode: plan.stats.unplacedByCode, daysOverCapacity: plan.stats.daysOverCapacity,
     technicianDays: plan.stats.technicianDays, totalKm: Math.round(plan.stats.totalKm), kmPerPlacedVisit: plan.stats.placed ? plan.stats.totalKm / plan.stats.placed : 0,
@@ -119,6 +135,14 @@ export function runPlannerBench(say: (m: string) => void = m => process.stderr.w
   const base = planSeasonBaseline(input)
   const baseline = summary(base, (performance.now() - t) / 1000)
   say(`planner: baseline in ${baseline.seconds.toFixed(1)} s`)
+  // The same season with 40 technicians: enough time for nearly everything, to show what the
+  // planner does when capacity suffices.
+  const roomyInput = generatePlannerCompany(5000, 40)
+  t = performance.now()
+  const roomyPlan = planSeason(roomyInput)
+  const roomy = summary(roomyPlan, (performance.now() - t) / 1000)
+  const roomyBase = summary(planSeasonBaseline(roomyInput), 0)
+  say(`planner: with 40 technicians ${roomy.unplaced} unplaced, ${roomy.daysOverCapacity} days over capacity, ${roomy.totalKm} km against the baseline's ${roomyBase.totalKm} km (${roomyBase.unplaced} unplaced)`)
   const savingPercent = baseline.totalKm > 0 ? (1 - planner.totalKm / baseline.totalKm) * 100 : 0
   const savingPerVisitPercent = baseline.kmPerPlacedVisit > 0 ? (1 - planner.kmPerPlacedVisit / baseline.kmPerPlacedVisit) * 100 : 0
   const result = {
@@ -127,6 +151,9 @@ export function runPlannerBench(say: (m: string) => void = m => process.stderr.w
       visitMinutes: demand, capacityMinutes: capacity, plans: PLANS.map(p => ({ name: p.name, share: p.share, templates: p.templates.map(x => `${x.name} (${x.minutes} min)`) })), speedKmh: 40, detourFactor: 1.3 },
     budgets: PLANNER_BUDGET,
     planner, baseline, savingPercent, savingPerVisitPercent,
+    /** Share of the 28 technicians' time used each month: the unplaced visits fall in months that are full. */
+    monthlyUse: monthlyUse(input, plan),
+    withFortyTechnicians: { planner: roomy, baseline: { unplaced: roomyBase.unplaced, totalKm: roomyBase.totalKm, kmPerPlacedVisit: roomyBase.kmPerPlacedVisit }, savingPercent: roomyBase.totalKm > 0 ? (1 - roomy.totalKm / roomyBase.totalKm) * 100 : 0 },
     met: { seconds: planner.seconds < PLANNER_BUDGET.seconds, daysOverCapacity: planner.daysOverCapacity <= PLANNER_BUDGET.daysOverCapacity, drivesLess: planner.totalKm < baseline.totalKm },
   }
   const ok = (b: boolean) => (b ? 'met' : 'MISSED')

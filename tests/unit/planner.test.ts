@@ -180,6 +180,10 @@ describe('planner: what holds', () => {
     expect(plan.unplaced).toEqual([{ visitId: 'v9', code: 'no-working-day', reason: 'No working day between 7 Apr and 8 Apr: weekends, closed days and days off cover the whole window' }])
   })
 
+  it('with no technician at all, says so', () => {
+    expect(planSeason({ visits: [visit('v1')], technicians: [] }).unplaced).toEqual([{ visitId: 'v1', code: 'no-working-day', reason: 'No technician to plan with between 5 Apr and 9 Apr' }])
+  })
+
   it('a one-day window is kept to that day', () => {
     const plan = planSeason({ visits: [visit('v1', { windowEarliest: '2027-04-08', windowLatest: '2027-04-08' })], technicians: [tech('tess')] })
     expect(plan.placed).toEqual([{ visitId: 'v1', day: '2027-04-08', technicianId: 'tess', order: 1 }])

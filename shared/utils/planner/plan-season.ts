@@ -3,7 +3,8 @@
 // 1. Locked visits stay where a person put them and count against capacity.
 // 2. Territories: customers go to technicians by area (grid cells joined by a capacity-limited
 //    k-means starting from the technicians' homes); a customer served before keeps that
-//    technician. Every visit of a customer goes to the territory's technician while there is room.
+//    technician; whole territories are then swapped between technicians while that brings both
+//    nearer home. Every visit of a customer goes to the territory's technician while there is room.
 // 3. Within a territory each customer gets a weekday (a second capacity-limited k-means, one
 //    group per working weekday), so each weekday's stops lie in one part of the territory.
 // 4. Visits are placed most constrained first (shortest window, then earliest), each on the day of
@@ -11,7 +12,9 @@
 //    plus a penalty off the customer's weekday and per day away from the preferred day — on a day
 //    the technician works, with room for the visit and all the driving (capacity is never
 //    exceeded). When the territory's technician has no room, the other technicians are tried.
-// 5. Each day's route is checked with route-order.ts; what found no place is listed with the reason.
+// 5. Repair: a visit that found no place gets room by moving one other visit of a full day to
+//    another day of that visit's own window (bounded work).
+// 6. Each day's route is checked with route-order.ts; what found no place is listed with the reason.
 // Deterministic: no randomness, every tie goes to the earlier index.
 import { greatCircleKm, type RouteCoordinate } from '../route-order'
 import { balancedGroups, gridCells, spreadCentres, type AreaItem } from './areas'
@@ -69,6 +72,48 @@ function peakUtilisation(P: PreparedInput): number {
   let peak = 0
   for (let w = 0; w < weeks; w++) if (load[w]! > 0) peak = Math.max(peak, room[w]! > 0 ? load[w]! / room[w]! : Infinity)
   return Number.isFinite(peak) ? peak : 0
+}
+
+/**
+ * Swaps whole territories between two technicians while that brings both closer to home and each
+ * territory fits its new technician's limit (customers pinned to a technician stay with them).
+ */
+function matchTerritoriesToHomes(P: PreparedInput, areas: readonly AreaItem[], group: Int32Array, limits: readonly number[], baseLoad: readonly number[]): void {
+  const T = P.techs.length
+  if (T < 2 || areas.length === 0) return
+  const load = new Array<number>(T).fill(0)
+  const lat = new Array<number>(T).fill(0)
+  const lon = new Array<number>(T).fill(0)
+  areas.forEach((a, i) => {
+    const g = group[i]!
+    load[g]! += a.weight
+    lat[g]! += a.lat * a.weight
+    lon[g]! += a.lon * a.weight
+  })
+  const centre = (g: number) => (load[g]! > 0 ? { lat: lat[g]! / load[g]!, lon: lon[g]! / load[g]! } : null)
+  // cost[g][t]: home of t to the centre of territory g, weighted by the territory's load.
+  const cost = (g: number, t: number) => {
+    const c = centre(g)
+    return c ? greatCircleKm(P.techs[t]!.home, c) * load[g]! : 0
+  }
+  const owner = Array.from({ length: T }, (_, g) => g) // territory g is served by technician owner[g]
+  let improved = true
+  for (let pass = 0; improved && pass < 10; pass++) {
+    improved = false
+    for (let g = 0; g < T; g++) {
+      for (let h = g + 1; h < T; h++) {
+        const a = owner[g]!
+        const b = owner[h]!
+        if (load[g]! + baseLoad[b]! > limits[b]! + 1e-9 || load[h]! + baseLoad[a]! > limits[a]! + 1e-9) continue
+        if (cost(g, b) + cost(h, a) < cost(g, a) + cost(h, b) - 1e-9) {
+          owner[g] = b
+          owner[h] = a
+          improved = true
+        }
+      }
+    }
+  }
+  for (let i = 0; i < group.length; i++) group[i] = owner[group[i]!]!
 }
 
 /** Customer → technician: who served them before, else whose locked visits they have most, else by area. */
@@ -135,6 +180,7 @@ function territories(P: PreparedInput, customers: AreaItem[]): Territories {
     return shared && spread[i] ? spread[i]! : t.home
   })
   const group = areas.length ? balancedGroups(areas, starts, limits, baseLoad) : new Int32Array(0)
+  matchTerritoriesToHomes(P, areas, group, limits, baseLoad)
   cellItems.forEach((members, a) => {
     for (const c of members) techOfCustomer[c] = group[a]!
   })

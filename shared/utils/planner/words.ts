@@ -35,6 +35,7 @@ export function unplacedReason(P: PreparedInput, homes: readonly RouteCoordinate
       }
     }
   })
+  if (P.techs.length === 0) return { code: 'no-working-day', reason: `No technician to plan with ${when}` }
   if (working.length === 0) return { code: 'no-working-day', reason: `No working day ${when}: weekends, closed days and days off cover the whole window` }
   const duration = P.duration[v]!
   // The least a single visit needs from each working technician: the visit and the drive to it.
