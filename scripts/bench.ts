@@ -3,8 +3,9 @@
 // autocannon at 1 and 50 connections for sign-in, the technician's Today, a feature's year of
 // readings, the invoices table, the revenue view and the water evaluation, each beside the same
 // query run straight through pg; the alert scan (incremental and full), renewing contracts, the
-// JavaScript each page loads, and that every list is paginated. Writes bench/results/<time>.json
-// and bench/results/summary.md, and names each budget met or missed.
+// JavaScript each page loads, and that every list is paginated; and the season planner on a
+// generated season of the same size (pure: no database, no server; bench/planner.ts). Writes
+// bench/results/<time>.json and bench/results/summary.md, and names each budget met or missed.
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process'
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
 import { dirname, resolve } from 'node:path'
@@ -16,10 +17,11 @@ import pg from 'pg'
 import { chromium } from 'playwright-core'
 // @ts-expect-error plain ESM script without types
 import { clusterConfig, urlFor } from './db.mjs'
+import { runPlannerBench } from '../bench/planner'
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..')
 const { values } = parseArgs({ options: { 'customers': { type: 'string', default: '5000' }, 'duration': { type: 'string', default: '5' }, 'reseed': { type: 'boolean', default: false }, 'port': { type: 'string', default: '3299' }, 'summary-only': { type: 'boolean', default: false }, 'only': { type: 'string' } } })
-/** --only pages (or endpoints, alerts, renewals, pagination): measure just that part and merge it into latest.json. */
+/** --only pages (or endpoints, alerts, renewals, pagination, planner): measure just that part and merge it into latest.json. */
 const want = (part: string) => !values.only || values.only.split(',').includes(part)
 const DURATION = Number(values.duration)
 const PORT = Number(values.port)
@@ -98,6 +100,12 @@ async function main() {
     writeFileSync(resolve(dir, 'summary.md'), summaryMd(JSON.parse(readFileSync(resolve(dir, 'latest.json'), 'utf8'))))
     return
   }
+  // The season planner is pure: it runs before (and without) the database and the server.
+  const planner = want('planner') ? runPlannerBench(say) : undefined
+  if (values.only && values.only.split(',').every(p => p === 'planner')) {
+    saveResults({ planner })
+    return
+  }
   // How much data is there already? (A check only: the connection closes before any reseed drops the database.)
   let readings = 0
   const probe = new pg.Client({ connectionString: DB_URL })
@@ -125,7 +133,7 @@ async function main() {
   const companyId = co.id as string
 
   const server = await startServer()
-  const results: Record<string, unknown> = { at: new Date().toISOString(), counts, durationSeconds: DURATION, budgets: BUDGET, seedSeconds: results0.seedSeconds ?? null }
+  const results: Record<string, unknown> = { at: new Date().toISOString(), counts, durationSeconds: DURATION, budgets: BUDGET, seedSeconds: results0.seedSeconds ?? null, ...(planner ? { planner } : {}) }
   try {
     const login = async (email: string) => (await (await fetch(`${BASE}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password: 'demo-pond-2026' }) })).json() as { token: string }).token
     const owner = await login('owner@larchfield-scale.example')
@@ -253,6 +261,11 @@ async function main() {
     server.kill('SIGTERM')
     await c.end()
   }
+  saveResults(results)
+}
+
+/** Writes bench/results/<time>.json, latest.json and summary.md; with --only, merged over the earlier latest.json. */
+function saveResults(results: Record<string, unknown>) {
   const dir = resolve(root, 'bench/results')
   mkdirSync(dir, { recursive: true })
   const stamp = new Date().toISOString().replace(/[:.]/g, '-')
@@ -278,7 +291,7 @@ const WHY = [
 
 function summaryMd(r: Record<string, any>) {
   const ok = (b: boolean) => (b ? 'met' : '**missed**')
-  const lines = [`# Benchmark summary`, '', `Run ${r.at} on this machine, ${r.durationSeconds} s per measurement. Data: ${Object.entries(r.counts).map(([k, v]) => `${v} ${k}`).join(', ')}.`, '',
+  const lines = [`# Benchmark summary`, '', `Run ${r.at} on this machine, ${r.durationSeconds} s per measurement. Data: ${Object.entries(r.counts ?? {}).map(([k, v]) => `${v} ${k}`).join(', ')}.`, '',
     ...(r.seedSeconds ? [`Generating it (npm run db:seed:scale) took ${r.seedSeconds.toFixed(0)} s (budget 180 s: ${ok(r.seedSeconds < 180)}).`, ''] : []),
     '| endpoint | connections | app req/s | app p95 ms | pg req/s | pg p95 ms | app ÷ pg | p95 budget (reads, 50 conn.) | throughput budget (≥ 40 %) |', '| --- | --- | --- | --- | --- | --- | --- | --- | --- |']
   for (const e of r.endpoints ?? []) {
@@ -293,6 +306,12 @@ function summaryMd(r: Record<string, any>) {
   if (r.pageJsKbGzip) {
     lines.push('', '| page | JavaScript on first load (kB gzip) |', '| --- | --- |')
     for (const [p, kb] of Object.entries(r.pageJsKbGzip)) lines.push(`| ${p} | ${kb}${p.includes('/visits/') ? ` (budget ${r.budgets.visitPageJsKb} kB: ${ok((kb as number) <= r.budgets.visitPageJsKb)})` : ''} |`)
+  }
+  const pl = r.planner
+  if (pl) {
+    lines.push('', `Season planner (${pl.data.visits} visits of ${pl.data.customers} customers, ${pl.data.technicians} technicians, visit time ${(pl.data.visitMinutes / pl.data.capacityMinutes * 100).toFixed(0)} % of their time): planned in ${pl.planner.seconds.toFixed(1)} s (budget ${pl.budgets.seconds} s: ${ok(pl.met.seconds)}); technician-days over capacity ${pl.planner.daysOverCapacity} (budget ${pl.budgets.daysOverCapacity}: ${ok(pl.met.daysOverCapacity)}); unplaced ${pl.planner.unplaced} (${Object.entries(pl.planner.unplacedByCode).map(([k, v]) => `${k} ${v}`).join(', ')}), baseline ${pl.baseline.unplaced}; driving ${pl.planner.totalKm} km against the baseline's ${pl.baseline.totalKm} km, ${pl.savingPercent.toFixed(1)} % less (${ok(pl.met.drivesLess)}), per placed visit ${pl.planner.kmPerPlacedVisit.toFixed(2)} against ${pl.baseline.kmPerPlacedVisit.toFixed(2)} km. Technician time used per month: ${Object.entries(pl.monthlyUse ?? {}).map(([m, u]) => `${m.slice(5)} ${Math.round((u as number) * 100)} %`).join(', ')} (the unplaced visits fall in the full months).`)
+    const f = pl.withFortyTechnicians
+    if (f) lines.push('', `The same season with 40 technicians: ${f.planner.unplaced} unplaced, ${f.planner.daysOverCapacity} technician-days over capacity, planned in ${f.planner.seconds.toFixed(1)} s; driving ${f.planner.totalKm} km against the baseline's ${f.baseline.totalKm} km (${f.baseline.unplaced} unplaced), ${f.savingPercent.toFixed(1)} % less.`)
   }
   if (r.pagination) {
     lines.push('', 'Pagination (every list asked for 1,000 rows):', '')
