@@ -264,19 +264,17 @@ async function main() {
   saveResults(results)
 }
 
-/** Writes bench/results/<time>.json, latest.json and summary.md; with --only, merged over the earlier latest.json. */
+/** Writes bench/results/latest.json and summary.md (git keeps their history); with --only, merged over the earlier latest.json. */
 function saveResults(results: Record<string, unknown>) {
   const dir = resolve(root, 'bench/results')
   mkdirSync(dir, { recursive: true })
-  const stamp = new Date().toISOString().replace(/[:.]/g, '-')
   if (values.only && existsSync(resolve(dir, 'latest.json'))) {
     const earlier = JSON.parse(readFileSync(resolve(dir, 'latest.json'), 'utf8'))
     Object.assign(results, { ...earlier, ...Object.fromEntries(Object.entries(results).filter(([k]) => !['at', 'counts', 'durationSeconds', 'budgets', 'seedSeconds'].includes(k))) })
   }
-  writeFileSync(resolve(dir, `${stamp}.json`), `${JSON.stringify(results, null, 2)}\n`)
   writeFileSync(resolve(dir, 'latest.json'), `${JSON.stringify(results, null, 2)}\n`)
   writeFileSync(resolve(dir, 'summary.md'), summaryMd(results))
-  say(`written bench/results/${stamp}.json and bench/results/summary.md`)
+  say('written bench/results/latest.json and bench/results/summary.md')
 }
 
 /** What the measurements on this 2-core machine come down to, where a budget is missed. */
