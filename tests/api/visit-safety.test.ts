@@ -40,14 +40,15 @@ describe('safety items in visit checklists', () => {
     const deep = await generated('deep', 1.2)
     const spring = deep.spring_cleanout!.join('\n')
     expect(spring).toMatch(/do not work alone/)
-    expect(spring).toMatch(/held in pond water in a shaded, aerated container/)
+    expect(spring).toMatch(/Hold fish in pond water, in a shaded and aerated container/)
+    expect(spring).toMatch(/float the fish until the temperatures match/)
     expect(spring).toMatch(/temperatures match/)
     expect(spring).toMatch(/gloves and eye protection.*never mix products/)
     expect(deep.spring_cleanout).toContain('Debris removed')
     const winter = deep.water_test!.join('\n')
     expect(winter).toMatch(/stay off ice/)
     expect(winter).toMatch(/do not work alone/) // 1.2 m is deep water
-    expect(winter).not.toMatch(/held in pond water/)
+    expect(winter).not.toMatch(/Hold fish in pond water/)
     // A net clean-out in October: no chemicals, no ice, but deep water.
     const net = deep.net_cleanout!.join('\n')
     expect(net).toMatch(/do not work alone/)
