@@ -25,7 +25,7 @@ export interface ParameterInfo {
   /** The SI (or lab) unit the value is stored in. */
   siUnit: string
   kind: QuantityKind
-  /** Digits shown, when the kind's default is not right for this parameter. */
+  /** Digits shown in both systems, when the kind's default is not right (set only for kinds shown in the same unit in both). */
   digits?: number
   group: ChartGroup
   /** Measured by a kit and typed into a form (false: computed by the engine). */
@@ -69,7 +69,7 @@ export function parameterUnit(key: ReadingKey, system: UnitSystem): string {
 /** Digits shown for a parameter in a system. */
 export function parameterDigits(key: ReadingKey, system: UnitSystem): number {
   const p = PARAMETER_CATALOGUE[key]
-  return p.kind === 'concentration' || p.kind === 'percent' ? p.digits ?? digitsFor(p.kind, system) : digitsFor(p.kind, system)
+  return p.digits ?? digitsFor(p.kind, system)
 }
 
 /** Label with the unit (and basis) as a form or a table header shows it: "Water temperature (°F)", "KH (mg/L as CaCO3)". */

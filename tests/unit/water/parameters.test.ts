@@ -62,3 +62,33 @@ describe('the parameter catalogue', () => {
     expect(parameterToDisplay('totalAmmoniaMgL', 0.5, 'us')).toBe(0.5)
   })
 })
+
+describe('each parameter as forms, charts and exports read it', () => {
+  it.each([
+    ['temperatureC', 'Water temperature (°F)', 'Water temperature (°C)', '°C', 'temperature'],
+    ['pH', 'pH', 'pH', '', 'ph'],
+    ['totalAmmoniaMgL', 'Total ammonia (TAN) (mg/L as N)', 'Total ammonia (TAN) (mg/L as N)', 'mg/L', 'ammonia'],
+    ['nh3MgL', 'Un-ionized ammonia (mg/L as NH3)', 'Un-ionized ammonia (mg/L as NH3)', 'mg/L', 'ammonia'],
+    ['nitriteMgL', 'Nitrite (mg/L as NO2)', 'Nitrite (mg/L as NO2)', 'mg/L', 'nitrite'],
+    ['nitrateMgL', 'Nitrate (mg/L as NO3)', 'Nitrate (mg/L as NO3)', 'mg/L', 'nitrate'],
+    ['khMgL', 'KH (mg/L as CaCO3)', 'KH (mg/L as CaCO3)', 'mg/L', 'hardness'],
+    ['ghMgL', 'GH (mg/L as CaCO3)', 'GH (mg/L as CaCO3)', 'mg/L', 'hardness'],
+    ['dissolvedOxygenMgL', 'Dissolved oxygen (mg/L)', 'Dissolved oxygen (mg/L)', 'mg/L', 'oxygen'],
+    ['doSaturationPct', 'Oxygen saturation (%)', 'Oxygen saturation (%)', '%', 'oxygen'],
+    ['saltGL', 'Salt (%)', 'Salt (g/L)', 'g/L', 'salt'],
+    ['chlorineMgL', 'Chlorine (mg/L as Cl2)', 'Chlorine (mg/L as Cl2)', 'mg/L', 'chlorine'],
+    ['phosphateMgL', 'Phosphate (mg/L as PO4)', 'Phosphate (mg/L as PO4)', 'mg/L', 'phosphate'],
+    ['waterLevelMm', 'Water level (in)', 'Water level (cm)', 'mm', 'level'],
+  ] as const)('%s', (key, us, metric, siUnit, group) => {
+    expect(parameterHeading(key, 'us')).toBe(us)
+    expect(parameterHeading(key, 'metric')).toBe(metric)
+    // stored in the SI (or lab) unit shared/types/water.ts states for the reading
+    expect(PARAMETER_CATALOGUE[key].siUnit).toBe(siUnit)
+    expect(PARAMETER_CATALOGUE[key].group).toBe(group)
+    expect(PARAMETER_CATALOGUE[key].plain.length).toBeGreaterThan(1)
+  })
+  it('the water level is read against the mark', () => {
+    expect(PARAMETER_CATALOGUE.waterLevelMm.basis).toBe('against the mark')
+    expect(PARAMETER_CATALOGUE.waterLevelMm.plain).toBe('Water level')
+  })
+})
