@@ -109,11 +109,3 @@ export function homeDose(i: HomeDoseInput): HomeDose {
     }
   }
 }
-
-/**
- * @deprecated Use `amountText` of `homeDose`, or `formatDose` of shared/utils/water/format.ts; kept
- * only until the portal's dosing helper has switched, then to be removed.
- */
-export function amountInUnits(amount: number, unit: string, system: UnitSystem): string {
-  return formatDose(amount, unit, system)
-}

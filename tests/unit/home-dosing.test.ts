@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { amountInUnits, homeDose } from '../../shared/utils/home-dosing'
+import { homeDose } from '../../shared/utils/home-dosing'
 import { foreignUnitsIn, stringsIn } from '../helpers/units-scan'
 
 // Label rates here are invented for the test (a real product's label decides); the chemistry is
@@ -53,9 +53,6 @@ describe('the customer\'s dosing helper', () => {
     expect(homeDose({ treatment: 'salt', volumeL: 4000, currentSaltPpt: 0, targetSaltPpt: 1 }).amountText).toBe('4 kg')
     expect(homeDose({ treatment: 'bacteria', volumeL: 3785, label: { amount: 30, unit: 'mL', perLitres: 3785 }, unitSystem: 'us' }).amountText).toBe('1 fl oz')
     expect(homeDose({ treatment: 'kh_buffer', volumeL: 1000, currentKhMgL: 40, targetKhMgL: 100, unitSystem: 'us' }).amountText).toBe('1.1 oz') // 29.96 g
-    // the formatter replaces the old helper (kept only until the portal has switched)
-    expect(amountInUnits(4, 'kg', 'us')).toBe('8.8 lb')
-    expect(amountInUnits(30, 'mL', 'metric')).toBe('30 mL')
   })
 
   it('every sentence in the system\'s units', () => {
