@@ -22,6 +22,7 @@ export function addDays(d: LocalDate, days: number): LocalDate {
   return utcDay(d).plus({ days }).toISODate()!
 }
 
+/** The date `months` after a date, kept to the month's end when the day does not exist (Jan 31 + 1 → Feb 28). */
 export function addMonths(d: LocalDate, months: number): LocalDate {
   return utcDay(d).plus({ months }).toISODate()!
 }
