@@ -69,6 +69,8 @@ export const LOCAL_DATE_STYLES = {
   weekdayLongDate: { weekday: 'short', month: 'long', day: 'numeric', year: 'numeric' },
   /** "Mar 4, 2026" */
   date: { month: 'short', day: 'numeric', year: 'numeric' },
+  /** "March 4, 2026" */
+  longDate: { month: 'long', day: 'numeric', year: 'numeric' },
   /** "Mar 4" */
   monthDay: { month: 'short', day: 'numeric' },
   /** "March 2026" */
