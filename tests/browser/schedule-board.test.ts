@@ -3,6 +3,7 @@ import { resolve } from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { api, baseUrl, demo, tokenFor } from '../helpers/api'
+import { localToday } from '../../shared/utils/company-time'
 import { ARTIFACTS, launch, shot, signInThroughForm, VIEWPORTS, waitForHydration } from '../helpers/browser'
 
 // A fixed day, far from the demo season and from whatever date the tests run on:
@@ -123,4 +124,22 @@ describe('the schedule board: many visits at once, and visits that will not happ
       await context.close()
     })
   }
+
+  it("the Today button goes to the company's today when the browser's clock is in another time zone", async () => {
+    // UTC+14: for most of any day the browser's date differs from the company's (America/Chicago in the demo).
+    const context = await browser.newContext({ viewport: VIEWPORTS.desktop, timezoneId: 'Pacific/Kiritimati' })
+    const page = await context.newPage()
+    await signInThroughForm(page, demo.owner)
+    await page.waitForURL(url => url.pathname === '/')
+    await page.goto(`${baseUrl()}/schedule`)
+    await waitForHydration(page)
+    const company = (await api('/api/company', { token: await tokenFor(demo.owner) })).body
+    await page.getByLabel('Go to date').fill(DAY)
+    await page.locator(`section[data-day="${DAY}"]`).waitFor()
+    await page.getByRole('button', { name: 'Today' }).click()
+    const today = localToday(company.timeZone)
+    await page.locator(`section[data-day="${today}"]`).waitFor()
+    await expect(page.getByLabel('Go to date').inputValue()).resolves.toBe(today)
+    await context.close()
+  })
 })
