@@ -1,7 +1,7 @@
 import { and, asc, eq, inArray, isNull, lt, lte, notExists, or, sql } from 'drizzle-orm'
 import { VISIT_TYPE_LABELS } from '../../shared/types/schedule'
 import { daysBetween, monthlyPeriods, reminderStageFor, RENEWAL_LEAD_DAYS, TERM_INVOICE_LEAD_DAYS, REMINDER_DAYS } from '../../shared/utils/billing'
-import { addDays, localToday } from '../../shared/utils/recurrence'
+import { addDays, formatLocalDate, localToday } from '../../shared/utils/company-time'
 import { companies, contracts, invoices, plans, taskRuns, visits } from '../db/schema'
 import { useDb, withSessionLock, type Tx } from '../utils/db'
 import { paymentsConfigured } from '../utils/payments'
@@ -31,7 +31,7 @@ export interface BillingRunSummary {
   reminders: number
 }
 
-const fmtDate = (d: string) => new Intl.DateTimeFormat('en-US', { month: 'short', day: 'numeric', year: 'numeric', timeZone: 'UTC' }).format(new Date(`${d}T12:00:00Z`))
+const fmtDate = (d: string) => formatLocalDate(d, 'date')
 
 /** A contract as it is billed: who, in what currency, for which plan at which price (per cadence period). */
 export interface BilledContract { id: string, companyId: string, customerId: string, currency: string, planName: string, priceMinor: number }

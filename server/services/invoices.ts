@@ -1,7 +1,7 @@
 import { and, asc, count, desc, eq, ilike, lt, or, sql, type SQL } from 'drizzle-orm'
 import type { InvoiceCreateInput, InvoiceLineInput, InvoiceListQuery, InvoiceUpdateInput } from '../../shared/schemas/billing'
 import { PAYMENT_METHOD_LABELS, type InvoiceDocument, type InvoiceSource } from '../../shared/types/billing'
-import { addDays, localToday } from '../../shared/utils/recurrence'
+import { addDays, formatLocalDate, localToday } from '../../shared/utils/company-time'
 import { MONEY_MAX_MINOR } from '../../shared/schemas/fields'
 import { formatTaxRate, invoiceTotals } from '../../shared/utils/billing'
 import { formatMoney } from '../../shared/utils/money'
@@ -241,7 +241,7 @@ export async function finalizeInTx(tx: Tx, invoiceId: string, today?: string) {
   return { number, issueDate }
 }
 
-const fmtDate = (d: string) => new Intl.DateTimeFormat('en-US', { month: 'long', day: 'numeric', year: 'numeric', timeZone: 'UTC' }).format(new Date(`${d}T12:00:00Z`))
+const fmtDate = (d: string) => formatLocalDate(d, 'longDate')
 
 type MailKind = 'invoice' | 'reminder' | 'receipt'
 /** Queues an invoice e-mail (the invoice, an overdue reminder, or a receipt) inside the caller's transaction. */

@@ -2,6 +2,7 @@ import { and, asc, count, desc, eq, inArray, type SQL } from 'drizzle-orm'
 import type { RequestScheduleInput, ServiceRequestInput } from '../../shared/schemas/portal'
 import { MAX_REQUEST_PHOTOS, REQUEST_KIND_LABELS, REQUEST_STATUS_LABELS, type RequestStatus } from '../../shared/types/requests'
 import { VISIT_TYPE_LABELS } from '../../shared/types/schedule'
+import { formatLocalDate } from '../../shared/utils/company-time'
 import { localTimeToInstant, localToday } from '../../shared/utils/recurrence'
 import { companies, customers, photos, serviceRequests, sites, users, visits, waterFeatures } from '../db/schema'
 import { ownCustomerId, type SessionUser } from '../utils/auth'
@@ -147,7 +148,7 @@ export async function scheduleRequest(actor: SessionUser, id: string, input: Req
     }).returning({ id: visits.id })
     await tx.update(serviceRequests).set({ status: 'scheduled', visitId: v!.id, reply: input.reply, handledBy: actor.id, handledAt: new Date() }).where(eq(serviceRequests.id, id))
     await recordAudit(tx, { action: 'request.scheduled', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'request', subjectId: id, ip, detail: { visitId: v!.id, date: input.date } })
-    const day = new Intl.DateTimeFormat('en-US', { weekday: 'long', month: 'long', day: 'numeric', timeZone: 'UTC' }).format(new Date(`${input.date}T12:00:00Z`))
+    const day = formatLocalDate(input.date, 'longWeekdayMonthDay')
     await answer(tx, r, `Visit booked: ${day}, ${input.startTime}`, [
       `${company!.name} booked a ${VISIT_TYPE_LABELS[input.visitType].toLowerCase()} visit for your request (${REQUEST_KIND_LABELS[r.kind].toLowerCase()}) on ${day} at about ${input.startTime}.`,
       ...(input.reply ? [input.reply] : []),

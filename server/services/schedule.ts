@@ -38,6 +38,7 @@ const visitColumns = {
   movedManually: visits.movedManually, moveReason: visits.moveReason, statusReason: visits.statusReason,
   contractId: visits.contractId, customerId: visits.customerId, customerName: customers.name,
   siteId: visits.siteId, siteName: sites.name, siteLine1: sites.line1, siteCity: sites.city,
+  siteLatitude: sites.latitude, siteLongitude: sites.longitude,
 }
 
 /** Visits between two dates for the week and month boards, with each technician's load per day. */

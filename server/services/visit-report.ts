@@ -1,6 +1,7 @@
 import { WATER_ADVICE_SAFETY, safetySentence } from '../../shared/utils/safety'
 import { and, asc, eq, gt, inArray } from 'drizzle-orm'
 import { VISIT_TYPE_LABELS } from '../../shared/types/schedule'
+import { formatLocalDate } from '../../shared/utils/company-time'
 import { formatDose } from '../../shared/utils/water/format'
 import { companies, customers, doses, photos, readings, sites, visits, waterFeatures } from '../db/schema'
 import type { Tx } from '../utils/db'
@@ -38,7 +39,7 @@ export async function queueVisitReport(tx: Tx, visitId: string) {
   const [next] = await tx.select({ scheduledOn: visits.scheduledOn, visitType: visits.visitType }).from(visits)
     .where(and(eq(visits.customerId, v.customerId), gt(visits.scheduledOn, v.scheduledOn), inArray(visits.status, ['scheduled']))).orderBy(asc(visits.scheduledOn)).limit(1)
 
-  const fmtDate = (d: string) => new Intl.DateTimeFormat('en-US', { weekday: 'long', month: 'long', day: 'numeric', year: 'numeric', timeZone: 'UTC' }).format(new Date(`${d}T12:00:00Z`))
+  const fmtDate = (d: string) => formatLocalDate(d, 'longWeekdayDate')
   const done = v.checklist.filter(c => c.state === 'done').map(c => c.label)
   const problems = v.checklist.filter(c => c.state === 'problem').map(c => `${c.label}: ${c.note ?? ''}`)
   const concerns = readingRows.flatMap(({ r, featureName }) => r.evaluation.filter(p => p.status !== 'ok').map(p => ({ featureName, ...p })))

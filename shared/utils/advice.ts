@@ -6,6 +6,7 @@
 // ammonia or nitrite are high or the water is cold, lines ordered first things first. The actions
 // are common pond-keeping practice (no published source); the thresholds are the feature's ranges.
 import type { AdvicePriority, Parameter, ParameterEvaluation, ReadingEvaluation, ReadingStatus } from '../types/water'
+import { formatLocalDate } from './company-time'
 import { formatQuantity, type UnitSystem } from './water/format'
 import { PARAMETER_CATALOGUE } from './water/parameters'
 import {
@@ -87,7 +88,7 @@ export interface AdviceOptions {
 
 export { callUsToday }
 
-const fmtDay = (d: string) => new Intl.DateTimeFormat('en-US', { weekday: 'short', month: 'short', day: 'numeric', timeZone: 'UTC' }).format(new Date(`${d}T12:00:00Z`))
+const fmtDay = (d: string) => formatLocalDate(d, 'weekdayMonthDay')
 const RANK: Record<ReadingStatus, number> = { ok: 0, watch: 1, act: 2 }
 const isOff = (p: ParameterEvaluation) => p.status !== 'ok'
 const isHigh = (p: ParameterEvaluation) => p.limit == null || p.value > p.limit

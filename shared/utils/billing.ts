@@ -4,7 +4,7 @@ import { DateTime } from 'luxon'
 import type { PaymentMismatch } from '../types/billing'
 import type { BillingCadence } from '../types/schedule'
 import { formatMoney } from './money'
-import type { LocalDate } from './recurrence'
+import { addMonths, type LocalDate } from './company-time'
 
 /**
  * n / d rounded to the nearest integer, halves away from zero (2.5 → 3, −2.5 → −3). Exact for
@@ -61,10 +61,8 @@ export function formatTaxRate(basisPoints: number): string {
 
 const d = (iso: LocalDate) => DateTime.fromISO(iso, { zone: 'utc' })
 
-/** The date `months` after `start`, kept to the month's end when the day does not exist (Jan 31 + 1 → Feb 28). */
-export function addMonths(start: LocalDate, months: number): LocalDate {
-  return d(start).plus({ months }).toISODate()!
-}
+// The date `months` after a date, kept to the month's end (Jan 31 + 1 → Feb 28): the company's calendar.
+export { addMonths }
 
 export interface BillingPeriod { start: LocalDate, end: LocalDate }
 

@@ -2,12 +2,13 @@
 // reconciliation of generated visits with what is already on the schedule. Pure: no I/O.
 import { DateTime } from 'luxon'
 import * as rruleModule from 'rrule'
+import { addDays, localToday, type LocalDate } from './company-time'
 
 // rrule ships ESM (bundlers, vitest) and a UMD build (plain Node): take RRule from either.
 const RRule = (rruleModule.RRule ?? (rruleModule as unknown as { default: typeof rruleModule }).default.RRule) as typeof rruleModule.RRule
 
-/** A company-local calendar date, YYYY-MM-DD. */
-export type LocalDate = string
+// The company's calendar lives in company-time; these stay importable from here.
+export { addDays, localToday, type LocalDate }
 
 export class RecurrenceRuleError extends RangeError {
   constructor(message: string) {
@@ -133,19 +134,12 @@ export function localTimeToInstant(date: LocalDate, time: string, timeZone: stri
   return dt.toJSDate()
 }
 
-/** Today's date in a time zone. */
-export function localToday(timeZone: string, now: Date = new Date()): LocalDate {
-  return DateTime.fromJSDate(now, { zone: timeZone }).toISODate()!
-}
 
 /** Adds months to a term start and returns the term's last day (start + months − 1 day). */
 export function termEndFor(start: LocalDate, months: number): LocalDate {
   return DateTime.fromISO(start, { zone: 'utc' }).plus({ months }).minus({ days: 1 }).toISODate()!
 }
 
-export function addDays(d: LocalDate, days: number): LocalDate {
-  return DateTime.fromISO(d, { zone: 'utc' }).plus({ days }).toISODate()!
-}
 
 /** Reasons the system cancels a visit; such a visit comes back if the plan wants it again. */
 export const REVIVABLE_CANCEL_REASONS = ['No longer in the plan', 'Contract paused'] as const

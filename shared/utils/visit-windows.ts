@@ -8,6 +8,7 @@
 // season is the window. The owner never sees the rule text: describeVisitSchedule() words it.
 //
 // Every export is auto-imported across the app and server, so the names are specific.
+import { monthName } from './company-time'
 import { addDays, expandVisitRule, isLocalDate, type LocalDate } from './recurrence'
 
 /** A day of the year as 'MM-DD' (e.g. '04-01'); '02-29' means the last day of February. */
@@ -51,7 +52,6 @@ export class VisitScheduleError extends RangeError {
   }
 }
 
-const MONTH_NAMES = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'] as const
 const DAYS_IN_MONTH = [31, 29, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31] as const
 const UNIT_FREQ: Record<VisitRepeatUnit, string> = { day: 'DAILY', week: 'WEEKLY', month: 'MONTHLY' }
 const FREQ_UNIT: Record<string, VisitRepeatUnit> = { DAILY: 'day', WEEKLY: 'week', MONTHLY: 'month' }
@@ -68,7 +68,7 @@ function checkMonthDay(value: unknown, field: string): MonthDay {
   if (typeof value !== 'string' || !/^\d{2}-\d{2}$/.test(value)) throw new VisitScheduleError(field, `${field} must be a day of the year as MM-DD, e.g. 04-01 for 1 April`)
   const [m, d] = monthDayParts(value)
   if (m < 1 || m > 12) throw new VisitScheduleError(field, `${field} has no month ${m}: use 01 to 12`)
-  if (d < 1 || d > DAYS_IN_MONTH[m - 1]!) throw new VisitScheduleError(field, `${field}: ${MONTH_NAMES[m - 1]} has no day ${d}`)
+  if (d < 1 || d > DAYS_IN_MONTH[m - 1]!) throw new VisitScheduleError(field, `${field}: ${monthName(m)} has no day ${d}`)
   return value
 }
 
@@ -164,7 +164,7 @@ export interface VisitWindowWordsOptions {
 
 function dayWords(md: MonthDay, opts: VisitWindowWordsOptions) {
   const [m, d] = monthDayParts(md)
-  return opts.dateOrder === 'month-day' ? `${MONTH_NAMES[m - 1]} ${d}` : `${d} ${MONTH_NAMES[m - 1]}`
+  return opts.dateOrder === 'month-day' ? `${monthName(m)} ${d}` : `${d} ${monthName(m)}`
 }
 
 /**
@@ -182,8 +182,8 @@ export function describeVisitSchedule(schedule: VisitSchedule, opts: VisitWindow
   const wrapsAllYear = wholeMonths && toMonth === (fromMonth + 10) % 12 + 1
   let season: string
   if (allYear || wrapsAllYear) season = 'all year'
-  else if (wholeMonths && fromMonth === toMonth && s.from <= s.to) season = `in ${MONTH_NAMES[fromMonth - 1]}`
-  else if (wholeMonths) season = rhythm.unit === 'once' ? `between ${MONTH_NAMES[fromMonth - 1]} and ${MONTH_NAMES[toMonth - 1]}` : `from ${MONTH_NAMES[fromMonth - 1]} to ${MONTH_NAMES[toMonth - 1]}`
+  else if (wholeMonths && fromMonth === toMonth && s.from <= s.to) season = `in ${monthName(fromMonth)}`
+  else if (wholeMonths) season = rhythm.unit === 'once' ? `between ${monthName(fromMonth)} and ${monthName(toMonth)}` : `from ${monthName(fromMonth)} to ${monthName(toMonth)}`
   else if (s.from === s.to) season = `on ${dayWords(s.from, opts)}`
   else season = rhythm.unit === 'once' ? `between ${dayWords(s.from, opts)} and ${dayWords(s.to, opts)}` : `from ${dayWords(s.from, opts)} to ${dayWords(s.to, opts)}`
 

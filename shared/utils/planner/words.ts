@@ -1,13 +1,12 @@
 // The planner's reasons in plain words: which window, and whose days were full.
+import { monthName } from '../company-time'
 import { greatCircleKm, type RouteCoordinate } from '../route-order'
 import { plannerDayDate, type PreparedInput } from './prepare'
 import type { PlannerUnplacedCode } from './types'
 
-const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'] as const
-
 /** "1 Apr" (day-month) or "Apr 1" (month-day). */
 export function plannerDateWords(date: string, order: 'day-month' | 'month-day'): string {
-  const m = MONTHS[Number(date.slice(5, 7)) - 1]
+  const m = monthName(Number(date.slice(5, 7)), true)
   const d = Number(date.slice(8, 10))
   return order === 'month-day' ? `${m} ${d}` : `${d} ${m}`
 }
