@@ -47,7 +47,7 @@ export async function seedSchedule(tx: Tx, companyId: string, demoId: (key: stri
     if (!inserted.length) continue
     added++
     await tx.insert(planVisitTemplates).values(p.templates.map((t, position) => ({
-      id: demoId(`${p.key}-t${position}`), planId, position, visitType: t.visitType, rrule: t.rrule,
+      id: demoId(`${p.key}-t${position}`), planId, position, visitType: t.visitType, rrule: t.rrule, seasonFrom: t.from, seasonTo: t.to, toleranceDays: t.toleranceDays,
       durationMinutes: t.durationMinutes, checklist: t.checklist.map(label => ({ label })),
     })))
   }

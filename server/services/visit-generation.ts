@@ -1,8 +1,32 @@
 import { and, asc, eq, gte, inArray, sql } from 'drizzle-orm'
-import { localTimeToInstant, localToday, planVisitDates, reconcileVisits, type PlannedVisit } from '../../shared/utils/recurrence'
+import { localTimeToInstant, localToday, nearestWorkingDay, reconcileVisits, type LocalDate, type PlannedVisit, type WorkCalendar } from '../../shared/utils/recurrence'
+import { expandVisitSchedule } from '../../shared/utils/visit-windows'
+import { templateVisitSchedule } from '../../shared/schemas/visit-schedule'
 import { closedDays, companies, contractFeatures, contracts, planVisitTemplates, visits, waterFeatures } from '../db/schema'
 import type { Tx } from '../utils/db'
 import { shapeDepthM, withSafety } from './visit-safety'
+
+type TemplateRow = typeof planVisitTemplates.$inferSelect
+
+/**
+ * One visit per window of each template in the term, on the working, open day nearest the
+ * window's preferred day (inside the window where it has one). Two windows landing on one day make one visit.
+ */
+export function windowVisitDates(templates: readonly TemplateRow[], term: { start: LocalDate, end: LocalDate }, cal: WorkCalendar): PlannedVisit[] {
+  const out: PlannedVisit[] = []
+  for (const t of templates) {
+    const taken = new Set<LocalDate>()
+    for (const w of expandVisitSchedule(templateVisitSchedule(t), term)) {
+      // Until the planner places visits, a window with no working, open day (a give-or-take of 0
+      // on a weekend) takes the nearest one in the term, as rules did before windows.
+      const date = nearestWorkingDay(w.preferred, cal, { from: w.earliest, to: w.latest }) ?? nearestWorkingDay(w.preferred, cal, { from: term.start, to: term.end })
+      if (!date || taken.has(date)) continue
+      taken.add(date)
+      out.push({ key: `${t.id}:${w.key}`, templateId: t.id, originalDate: w.preferred, date })
+    }
+  }
+  return out.sort((a, b) => a.date.localeCompare(b.date) || a.key.localeCompare(b.key))
+}
 
 /** The clock generation uses; tests and the demo seed pass their own. */
 export interface GenerationClock { now?: Date }
@@ -33,7 +57,7 @@ export async function regenerateContractVisits(tx: Tx, contractId: string, clock
   }).from(visits).where(eq(visits.contractId, contractId))
   const tz = company!.timeZone
   const today = localToday(tz, clock.now)
-  const dates = planVisitDates(templates, { start: contract.termStart, end: contract.termEnd }, { workingDays: company!.workingDays, closed: new Set(closed.map(c => c.day)) })
+  const dates = windowVisitDates(templates, { start: contract.termStart, end: contract.termEnd }, { workingDays: company!.workingDays, closed: new Set(closed.map(c => c.day)) })
   // A contract's features may sit on more than one site of the customer: one visit per site.
   const planned: Array<PlannedVisit & { siteId: string }> = featureSites.flatMap(({ siteId }) => dates.map(d => ({ ...d, key: `${d.key}:${siteId}`, siteId })))
   const r = reconcileVisits(existing, planned, today)
