@@ -2,8 +2,8 @@
 // windows, on open working days, within each technician's capacity (visits and driving), next to
 // the company's already-scheduled visits in the term, which stay where they are and count as
 // locked. What finds no place keeps its preferred day, unassigned, with the planner's reason.
-import { and, eq, gte, inArray, isNotNull, lte, ne, or, isNull } from 'drizzle-orm'
-import { planSeason, type PlannerVisit } from '../../shared/utils/planner/index'
+import { and, asc, eq, gte, inArray, isNotNull, isNull, lte, ne, or } from 'drizzle-orm'
+import { planSeason, type PlannerTechnician, type PlannerVisit } from '../../shared/utils/planner/index'
 import type { LocalDate } from '../../shared/utils/recurrence'
 import { sites, staffProfiles, users, visits } from '../db/schema'
 import type { Tx } from '../utils/db'
@@ -20,7 +20,21 @@ export interface VisitToPlace {
 
 export interface VisitPlacement { day: LocalDate, technicianId: string | null, unplacedReason: string | null }
 
-interface PlanningCompany { id: string, workingDays: readonly number[], baseLatitude: number | null, baseLongitude: number | null }
+export interface PlanningCompany { id: string, workingDays: readonly number[], baseLatitude: number | null, baseLongitude: number | null }
+
+/** The company's active technicians as the planner sees them (home: their own, else the company's base). */
+export async function planningTechnicians(tx: Tx, company: PlanningCompany): Promise<PlannerTechnician[]> {
+  const rows = await tx.select({ id: users.id, name: users.name, capacity: staffProfiles.capacityMinutes, lat: staffProfiles.homeLatitude, lon: staffProfiles.homeLongitude })
+    .from(users).leftJoin(staffProfiles, eq(staffProfiles.userId, users.id))
+    .where(and(eq(users.companyId, company.id), eq(users.role, 'technician'), eq(users.active, true)))
+    .orderBy(asc(users.name))
+  const base = companyBase(company)
+  return rows.map(t => ({ id: t.id, name: t.name, capacityMinutes: t.capacity ?? 420, workingDays: company.workingDays, home: { lat: t.lat ?? base.lat, lon: t.lon ?? base.lon } }))
+}
+
+export function companyBase(company: PlanningCompany) {
+  return { lat: company.baseLatitude ?? 0, lon: company.baseLongitude ?? 0 }
+}
 
 export async function placeNewVisits(
   tx: Tx, company: PlanningCompany, term: { start: LocalDate, end: LocalDate }, closed: readonly LocalDate[],
@@ -28,9 +42,7 @@ export async function placeNewVisits(
 ): Promise<Map<string, VisitPlacement>> {
   const out = new Map<string, VisitPlacement>()
   if (!toPlace.length) return out
-  const technicians = await tx.select({ id: users.id, name: users.name, capacity: staffProfiles.capacityMinutes, lat: staffProfiles.homeLatitude, lon: staffProfiles.homeLongitude })
-    .from(users).leftJoin(staffProfiles, eq(staffProfiles.userId, users.id))
-    .where(and(eq(users.companyId, company.id), eq(users.role, 'technician'), eq(users.active, true)))
+  const technicians = await planningTechnicians(tx, company)
   if (!technicians.length) {
     for (const v of toPlace) out.set(v.key, { day: v.preferred, technicianId: null, unplacedReason: 'No technician to plan with yet: add one to the team, then plan these weeks again' })
     return out
@@ -44,7 +56,7 @@ export async function placeNewVisits(
     ))
   const siteIds = [...new Set([...toPlace.map(v => v.siteId), ...booked.map(b => b.siteId)])]
   const siteRows = await tx.select({ id: sites.id, lat: sites.latitude, lon: sites.longitude }).from(sites).where(inArray(sites.id, siteIds))
-  const base = { lat: company.baseLatitude ?? 0, lon: company.baseLongitude ?? 0 }
+  const base = companyBase(company)
   const where = new Map(siteRows.map(s => [s.id, { lat: s.lat ?? base.lat, lon: s.lon ?? base.lon }]))
   const at = (siteId: string) => where.get(siteId) ?? base
   const techIds = new Set(technicians.map(t => t.id))
@@ -60,7 +72,7 @@ export async function placeNewVisits(
   ]
   const plan = planSeason({
     visits: planner, closedDays: closed,
-    technicians: technicians.map(t => ({ id: t.id, name: t.name, capacityMinutes: t.capacity ?? 420, workingDays: company.workingDays, home: { lat: t.lat ?? base.lat, lon: t.lon ?? base.lon } })),
+    technicians,
   })
   for (const p of plan.placed) {
     if (p.visitId.startsWith('new:')) out.set(p.visitId.slice(4), { day: p.day, technicianId: p.technicianId, unplacedReason: null })

@@ -65,3 +65,59 @@ describe('the season planner on activation', () => {
     expect(checked).toBeGreaterThan(20)
   })
 })
+
+describe('plan these weeks again', () => {
+  it('the preview changes nothing; applying with its token applies exactly it; a moved visit never moves', async () => {
+    const today = (await api('/api/today', { token: owner })).body.date as string
+    const year = Number(today.slice(0, 4)) + 2
+    const range = { from: `${year}-05-03`, to: `${year}-05-16` }
+    const snapshot = async () => (await pool.query(`select id, scheduled_on::text as day, technician_id from visits where status = 'scheduled' and scheduled_on between $1 and $2 order by id`, [range.from, range.to])).rows
+    // Put one visit of the range on a day by hand: it must stay there.
+    const [one] = await snapshot()
+    expect(one).toBeTruthy()
+    const techs = (await api('/api/technicians', { token: owner })).body.rows as Array<{ id: string }>
+    const handDay = `${year}-05-05`
+    const moved = await api(`/api/visits/${one.id}`, { method: 'PATCH', token: owner, body: { scheduledOn: handDay, technicianId: techs[0]!.id, moveReason: 'Customer asked for this day' } })
+    expect(moved.status, JSON.stringify(moved.body)).toBe(200)
+    const before = await snapshot()
+
+    const p = await api('/api/schedule/replan', { method: 'POST', token: owner, body: range })
+    expect(p.status, JSON.stringify(p.body)).toBe(200)
+    expect(p.body.applied).toBe(false)
+    expect(typeof p.body.token).toBe('string')
+    expect(await snapshot()).toEqual(before)
+    expect(p.body.moves.some((m: { visitId: string }) => m.visitId === one.id)).toBe(false)
+
+    const a = await api('/api/schedule/replan', { method: 'POST', token: owner, body: { ...range, apply: true, token: p.body.token } })
+    expect(a.status, JSON.stringify(a.body)).toBe(200)
+    expect(a.body.moves).toEqual(p.body.moves)
+    const after = await snapshot()
+    for (const m of p.body.moves as Array<{ visitId: string, to: { day: string, technicianId: string } | null }>) {
+      const v = after.find(x => x.id === m.visitId)
+      if (m.to) expect(v, m.visitId).toMatchObject({ day: m.to.day, technician_id: m.to.technicianId })
+    }
+    expect(after.find(x => x.id === one.id)).toMatchObject({ day: handDay, technician_id: techs[0]!.id })
+    // The same token again: the schedule changed since that preview.
+    if (p.body.moves.length) expect((await api('/api/schedule/replan', { method: 'POST', token: owner, body: { ...range, apply: true, token: p.body.token } })).status).toBe(409)
+  })
+
+  it('owner only; bad input is 400 naming the field', async () => {
+    const tess = await tokenFor(demo.tess)
+    const priya = await tokenFor(demo.priya)
+    expect((await api('/api/schedule/replan', { method: 'POST', token: tess, body: { from: '2030-05-01', to: '2030-05-14' } })).status).toBe(403)
+    expect((await api('/api/schedule/replan', { method: 'POST', token: priya, body: { from: '2030-05-01', to: '2030-05-14' } })).status).toBe(403)
+    expect((await api('/api/schedule/unplaced?from=2030-05-01&to=2030-05-14', { token: tess })).status).toBe(403)
+    const long = await api('/api/schedule/replan', { method: 'POST', token: owner, body: { from: '2030-01-01', to: '2030-12-31' } })
+    expect(long.status).toBe(400)
+    expect(long.body.data.fields.to).toMatch(/at most 183 days/)
+    const noToken = await api('/api/schedule/replan', { method: 'POST', token: owner, body: { from: '2030-05-01', to: '2030-05-14', apply: true } })
+    expect(noToken.status).toBe(400)
+    expect(noToken.body.data.fields.token).toBeTruthy()
+    const badDate = await api('/api/schedule/replan', { method: 'POST', token: owner, body: { from: 'soon', to: '2030-05-14' } })
+    expect(badDate.status).toBe(400)
+    expect(badDate.body.data.fields.from).toBeTruthy()
+    const tray = await api('/api/schedule/unplaced?from=2030-05-01&to=2030-05-14', { token: owner })
+    expect(tray.status).toBe(200)
+    expect(Array.isArray(tray.body.rows)).toBe(true)
+  })
+})
