@@ -2,7 +2,8 @@
 // per cadence period: per year, per month or per visit.
 import type { BillingCadence, VisitType } from '../../shared/types/schedule'
 
-interface DemoTemplate { visitType: VisitType, rrule: string, durationMinutes: number, checklist: string[] }
+/** `rrule` is the rhythm (FREQ=YEARLY = once in the season), `from`/`to` the season as MM-DD, `toleranceDays` the give or take. */
+interface DemoTemplate { visitType: VisitType, rrule: string, from: string, to: string, toleranceDays: number, durationMinutes: number, checklist: string[] }
 export interface DemoPlan { key: string, name: string, description: string, priceMinor: number, billingCadence: BillingCadence, termMonths: number, templates: DemoTemplate[] }
 
 const CHECK = {
@@ -19,40 +20,40 @@ export const demoPlans: DemoPlan[] = [
     key: 'plan-seasonal', name: 'Seasonal Care', priceMinor: 145_000, billingCadence: 'yearly', termMonths: 12,
     description: 'Spring clean-out, a visit every two weeks from May to September, leaf net on in October with weekly clean-outs, and the fall shutdown.',
     templates: [
-      { visitType: 'spring_cleanout', rrule: 'FREQ=YEARLY;BYMONTH=4;BYDAY=MO;BYSETPOS=2', durationMinutes: 240, checklist: CHECK.spring },
-      { visitType: 'routine', rrule: 'FREQ=WEEKLY;INTERVAL=2;BYMONTH=5,6,7,8,9;BYDAY=TU', durationMinutes: 60, checklist: CHECK.routine },
-      { visitType: 'net_install', rrule: 'FREQ=YEARLY;BYMONTH=10;BYDAY=MO;BYSETPOS=1', durationMinutes: 90, checklist: CHECK.netInstall },
-      { visitType: 'net_cleanout', rrule: 'FREQ=WEEKLY;BYMONTH=10,11;BYDAY=TH', durationMinutes: 45, checklist: CHECK.netCleanout },
-      { visitType: 'fall_shutdown', rrule: 'FREQ=YEARLY;BYMONTH=11;BYDAY=MO;BYSETPOS=3', durationMinutes: 120, checklist: CHECK.shutdown },
+      { visitType: 'spring_cleanout', rrule: 'FREQ=YEARLY', from: '04-01', to: '04-30', toleranceDays: 0, durationMinutes: 240, checklist: CHECK.spring },
+      { visitType: 'routine', rrule: 'FREQ=WEEKLY;INTERVAL=2', from: '05-01', to: '09-30', toleranceDays: 3, durationMinutes: 60, checklist: CHECK.routine },
+      { visitType: 'net_install', rrule: 'FREQ=YEARLY', from: '10-01', to: '10-15', toleranceDays: 0, durationMinutes: 90, checklist: CHECK.netInstall },
+      { visitType: 'net_cleanout', rrule: 'FREQ=WEEKLY', from: '10-16', to: '11-15', toleranceDays: 2, durationMinutes: 45, checklist: CHECK.netCleanout },
+      { visitType: 'fall_shutdown', rrule: 'FREQ=YEARLY', from: '11-10', to: '11-30', toleranceDays: 0, durationMinutes: 120, checklist: CHECK.shutdown },
     ],
   },
   {
     key: 'plan-koi-year', name: 'Koi Keeper, all year', priceMinor: 18_900, billingCadence: 'monthly', termMonths: 12,
     description: 'For fish ponds: weekly summer visits, leaf-net season, and a monthly winter water test with the de-icer checked.',
     templates: [
-      { visitType: 'spring_cleanout', rrule: 'FREQ=YEARLY;BYMONTH=4;BYDAY=WE;BYSETPOS=1', durationMinutes: 300, checklist: CHECK.spring },
-      { visitType: 'routine', rrule: 'FREQ=WEEKLY;BYMONTH=5,6,7,8,9;BYDAY=WE', durationMinutes: 60, checklist: CHECK.routine },
-      { visitType: 'net_install', rrule: 'FREQ=YEARLY;BYMONTH=10;BYDAY=TU;BYSETPOS=1', durationMinutes: 90, checklist: CHECK.netInstall },
-      { visitType: 'net_cleanout', rrule: 'FREQ=WEEKLY;BYMONTH=10,11;BYDAY=FR', durationMinutes: 45, checklist: CHECK.netCleanout },
-      { visitType: 'fall_shutdown', rrule: 'FREQ=YEARLY;BYMONTH=11;BYDAY=TU;BYSETPOS=3', durationMinutes: 150, checklist: CHECK.shutdown },
-      { visitType: 'water_test', rrule: 'FREQ=MONTHLY;BYMONTH=12,1,2,3;BYDAY=1TU', durationMinutes: 30, checklist: CHECK.waterTest },
+      { visitType: 'spring_cleanout', rrule: 'FREQ=YEARLY', from: '04-01', to: '04-20', toleranceDays: 0, durationMinutes: 300, checklist: CHECK.spring },
+      { visitType: 'routine', rrule: 'FREQ=WEEKLY', from: '05-01', to: '09-30', toleranceDays: 2, durationMinutes: 60, checklist: CHECK.routine },
+      { visitType: 'net_install', rrule: 'FREQ=YEARLY', from: '10-01', to: '10-15', toleranceDays: 0, durationMinutes: 90, checklist: CHECK.netInstall },
+      { visitType: 'net_cleanout', rrule: 'FREQ=WEEKLY', from: '10-16', to: '11-15', toleranceDays: 2, durationMinutes: 45, checklist: CHECK.netCleanout },
+      { visitType: 'fall_shutdown', rrule: 'FREQ=YEARLY', from: '11-10', to: '11-30', toleranceDays: 0, durationMinutes: 150, checklist: CHECK.shutdown },
+      { visitType: 'water_test', rrule: 'FREQ=MONTHLY', from: '12-01', to: '03-31', toleranceDays: 7, durationMinutes: 30, checklist: CHECK.waterTest },
     ],
   },
   {
     key: 'plan-spring-fall', name: 'Spring & Fall Essentials', priceMinor: 32_500, billingCadence: 'per_visit', termMonths: 12,
     description: 'Just the two big days: the spring clean-out and the fall shutdown, billed per visit.',
     templates: [
-      { visitType: 'spring_cleanout', rrule: 'FREQ=YEARLY;BYMONTH=4;BYDAY=TH;BYSETPOS=3', durationMinutes: 240, checklist: CHECK.spring },
-      { visitType: 'fall_shutdown', rrule: 'FREQ=YEARLY;BYMONTH=11;BYDAY=TH;BYSETPOS=1', durationMinutes: 120, checklist: CHECK.shutdown },
+      { visitType: 'spring_cleanout', rrule: 'FREQ=YEARLY', from: '04-10', to: '04-30', toleranceDays: 0, durationMinutes: 240, checklist: CHECK.spring },
+      { visitType: 'fall_shutdown', rrule: 'FREQ=YEARLY', from: '11-01', to: '11-20', toleranceDays: 0, durationMinutes: 120, checklist: CHECK.shutdown },
     ],
   },
   {
     key: 'plan-pondless', name: 'Pondless Tune-Up', priceMinor: 39_500, billingCadence: 'yearly', termMonths: 12,
     description: 'For pondless waterfalls and fountains: spring start-up, a monthly summer check of pump vault and dosing, and winter shutdown.',
     templates: [
-      { visitType: 'spring_cleanout', rrule: 'FREQ=YEARLY;BYMONTH=4;BYDAY=FR;BYSETPOS=4', durationMinutes: 120, checklist: CHECK.spring },
-      { visitType: 'routine', rrule: 'FREQ=MONTHLY;BYMONTH=5,6,7,8,9;BYDAY=1FR', durationMinutes: 45, checklist: CHECK.routine },
-      { visitType: 'fall_shutdown', rrule: 'FREQ=YEARLY;BYMONTH=10;BYDAY=FR;BYSETPOS=-1', durationMinutes: 90, checklist: CHECK.shutdown },
+      { visitType: 'spring_cleanout', rrule: 'FREQ=YEARLY', from: '04-15', to: '05-10', toleranceDays: 0, durationMinutes: 120, checklist: CHECK.spring },
+      { visitType: 'routine', rrule: 'FREQ=MONTHLY', from: '05-01', to: '09-30', toleranceDays: 5, durationMinutes: 45, checklist: CHECK.routine },
+      { visitType: 'fall_shutdown', rrule: 'FREQ=YEARLY', from: '10-15', to: '10-31', toleranceDays: 0, durationMinutes: 90, checklist: CHECK.shutdown },
     ],
   },
 ]

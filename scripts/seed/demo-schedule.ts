@@ -47,7 +47,7 @@ export async function seedSchedule(tx: Tx, companyId: string, demoId: (key: stri
     if (!inserted.length) continue
     added++
     await tx.insert(planVisitTemplates).values(p.templates.map((t, position) => ({
-      id: demoId(`${p.key}-t${position}`), planId, position, visitType: t.visitType, rrule: t.rrule,
+      id: demoId(`${p.key}-t${position}`), planId, position, visitType: t.visitType, rrule: t.rrule, seasonFrom: t.from, seasonTo: t.to, toleranceDays: t.toleranceDays,
       durationMinutes: t.durationMinutes, checklist: t.checklist.map(label => ({ label })),
     })))
   }
@@ -98,7 +98,7 @@ export async function seedSchedule(tx: Tx, companyId: string, demoId: (key: stri
     }
     // The technician for all of this customer's visits; past ones done (a few skipped).
     for (const contractId of churned ? [prevId] : [prevId, currId]) {
-      await tx.update(visits).set({ technicianId: a.tech }).where(eq(visits.contractId, contractId))
+      await tx.update(visits).set({ technicianId: a.tech, unplacedReason: null }).where(eq(visits.contractId, contractId))
       const past = await tx.select({ id: visits.id, startsAt: visits.startsAt, durationMinutes: visits.durationMinutes, status: visits.status })
         .from(visits).where(and(eq(visits.contractId, contractId), lt(visits.scheduledOn, today)))
       for (const [i, v] of past.entries()) {

@@ -44,7 +44,7 @@ async function writeTemplates(tx: Tx, planId: string, templates: PlanInput['temp
   const keepIds = templates.flatMap(t => (t.id ? [t.id] : []))
   await tx.delete(planVisitTemplates).where(and(eq(planVisitTemplates.planId, planId), keepIds.length ? notInArray(planVisitTemplates.id, keepIds) : undefined))
   for (const [position, t] of templates.entries()) {
-    const values = { visitType: t.visitType, rrule: t.rrule, durationMinutes: t.durationMinutes, checklist: t.checklist, position }
+    const values = { visitType: t.visitType, rrule: t.rrule, seasonFrom: t.seasonFrom, seasonTo: t.seasonTo, toleranceDays: t.toleranceDays, durationMinutes: t.durationMinutes, checklist: t.checklist, position }
     if (t.id) {
       const updated = await tx.update(planVisitTemplates).set(values).where(and(eq(planVisitTemplates.id, t.id), eq(planVisitTemplates.planId, planId))).returning({ id: planVisitTemplates.id })
       if (!updated.length) throw httpError(400, `Invalid body: templates.${position}.id — not a template of this plan`, { fields: { [`templates.${position}.id`]: 'Not a template of this plan' } })

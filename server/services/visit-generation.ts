@@ -1,8 +1,36 @@
 import { and, asc, eq, gte, inArray, sql } from 'drizzle-orm'
-import { localTimeToInstant, localToday, planVisitDates, reconcileVisits, type PlannedVisit } from '../../shared/utils/recurrence'
+import { localTimeToInstant, localToday, nearestWorkingDay, reconcileVisits, type LocalDate, type PlannedVisit, type WorkCalendar } from '../../shared/utils/recurrence'
+import { expandVisitSchedule } from '../../shared/utils/visit-windows'
+import { templateVisitSchedule } from '../../shared/schemas/visit-schedule'
 import { closedDays, companies, contractFeatures, contracts, planVisitTemplates, visits, waterFeatures } from '../db/schema'
 import type { Tx } from '../utils/db'
+import { placeNewVisits } from './season-planning'
 import { shapeDepthM, withSafety } from './visit-safety'
+
+type TemplateRow = typeof planVisitTemplates.$inferSelect
+
+/**
+ * One visit per window of each template in the term, on the working, open day nearest the
+ * window's preferred day (inside the window where it has one). Two windows landing on one day make one visit.
+ */
+export type WindowedVisit = PlannedVisit & { earliest: LocalDate, latest: LocalDate }
+
+export function windowVisitDates(templates: readonly TemplateRow[], term: { start: LocalDate, end: LocalDate }, cal: WorkCalendar): WindowedVisit[] {
+  const out: WindowedVisit[] = []
+  for (const t of templates) {
+    const taken = new Set<LocalDate>()
+    for (const w of expandVisitSchedule(templateVisitSchedule(t), term)) {
+      // Until the planner places visits, a window with no working, open day (a give-or-take of 0
+      // on a weekend) takes the nearest one in the term, as rules did before windows.
+      const date = nearestWorkingDay(w.preferred, cal, { from: w.earliest, to: w.latest }) ?? nearestWorkingDay(w.preferred, cal, { from: term.start, to: term.end })
+      if (!date || taken.has(date)) continue
+      taken.add(date)
+      const inWindow = date >= w.earliest && date <= w.latest
+      out.push({ key: `${t.id}:${w.key}`, templateId: t.id, originalDate: w.preferred, date, earliest: inWindow ? w.earliest : date, latest: inWindow ? w.latest : date })
+    }
+  }
+  return out.sort((a, b) => a.date.localeCompare(b.date) || a.key.localeCompare(b.key))
+}
 
 /** The clock generation uses; tests and the demo seed pass their own. */
 export interface GenerationClock { now?: Date }
@@ -15,7 +43,7 @@ export interface GenerationClock { now?: Date }
  */
 export async function regenerateContractVisits(tx: Tx, contractId: string, clock: GenerationClock = {}) {
   const [contract] = await tx.select().from(contracts).where(eq(contracts.id, contractId)).for('update').limit(1)
-  if (!contract) return { inserted: 0, rescheduled: 0, cancelled: 0 }
+  if (!contract) return { inserted: 0, rescheduled: 0, cancelled: 0, unplaced: [] }
   const [company] = await tx.select().from(companies).where(eq(companies.id, contract.companyId)).limit(1)
   // One connection inside a transaction: run the reads one after another.
   const templates = await tx.select().from(planVisitTemplates).where(eq(planVisitTemplates.planId, contract.planId)).orderBy(asc(planVisitTemplates.position))
@@ -33,24 +61,43 @@ export async function regenerateContractVisits(tx: Tx, contractId: string, clock
   }).from(visits).where(eq(visits.contractId, contractId))
   const tz = company!.timeZone
   const today = localToday(tz, clock.now)
-  const dates = planVisitDates(templates, { start: contract.termStart, end: contract.termEnd }, { workingDays: company!.workingDays, closed: new Set(closed.map(c => c.day)) })
+  const dates = windowVisitDates(templates, { start: contract.termStart, end: contract.termEnd }, { workingDays: company!.workingDays, closed: new Set(closed.map(c => c.day)) })
   // A contract's features may sit on more than one site of the customer: one visit per site.
-  const planned: Array<PlannedVisit & { siteId: string }> = featureSites.flatMap(({ siteId }) => dates.map(d => ({ ...d, key: `${d.key}:${siteId}`, siteId })))
+  const planned: Array<WindowedVisit & { siteId: string }> = featureSites.flatMap(({ siteId }) => dates.map(d => ({ ...d, key: `${d.key}:${siteId}`, siteId })))
+  // A visit the planner placed elsewhere in its window stays there while that day is still open.
+  const closedSet = new Set(closed.map(c => c.day))
+  const existingByKey = new Map(existing.filter(e => e.generationKey).map(e => [e.generationKey!, e]))
+  for (const p of planned) {
+    const e = existingByKey.get(p.key)
+    if (!e || e.status !== 'scheduled' || e.scheduledOn < p.earliest || e.scheduledOn > p.latest || closedSet.has(e.scheduledOn)) continue
+    const weekday = new Date(`${e.scheduledOn}T12:00:00Z`).getUTCDay() || 7
+    if (company!.workingDays.includes(weekday)) p.date = e.scheduledOn
+  }
   const r = reconcileVisits(existing, planned, today)
   const template = new Map(templates.map(t => [t.id, t]))
   const startOf = (date: string) => localTimeToInstant(date, company!.dayStartTime, tz)
 
+  /** New visits the planner could not place: they wait unassigned on their preferred day, with the reason. */
+  const unplaced: Array<{ visitId: string, day: LocalDate, reason: string }> = []
   if (r.insert.length) {
-    await tx.insert(visits).values(r.insert.map((p) => {
+    const plannedByKey = new Map(planned.map(p => [p.key, p]))
+    const placement = await placeNewVisits(tx, company!, { start: contract.termStart, end: contract.termEnd }, closed.map(c => c.day), r.insert.map((p) => {
+      const w = plannedByKey.get(p.key)!
+      return { key: p.key, earliest: w.earliest, latest: w.latest, preferred: p.date, durationMinutes: template.get(p.templateId)!.durationMinutes, siteId: w.siteId, customerId: contract.customerId }
+    }), contractId)
+    const inserted = await tx.insert(visits).values(r.insert.map((p) => {
       const t = template.get(p.templateId)!
-      const siteId = (p as PlannedVisit & { siteId: string }).siteId
+      const siteId = plannedByKey.get(p.key)!.siteId
+      const placed = placement.get(p.key) ?? { day: p.date, technicianId: null, unplacedReason: null }
       return {
         companyId: contract.companyId, contractId, templateId: t.id, customerId: contract.customerId, siteId,
-        visitType: t.visitType, scheduledOn: p.date, startsAt: startOf(p.date), durationMinutes: t.durationMinutes,
+        visitType: t.visitType, scheduledOn: placed.day, startsAt: startOf(placed.day), durationMinutes: t.durationMinutes,
+        technicianId: placed.technicianId, unplacedReason: placed.unplacedReason,
         generationKey: p.key,
-        checklist: withSafety(t.checklist.map(c => c.label), { visitType: t.visitType, date: p.date, deepestM: deepestAt.get(siteId) ?? null, latitude: company!.baseLatitude }),
+        checklist: withSafety(t.checklist.map(c => c.label), { visitType: t.visitType, date: placed.day, deepestM: deepestAt.get(siteId) ?? null, latitude: company!.baseLatitude }),
       }
-    })).onConflictDoNothing()
+    })).onConflictDoNothing().returning({ id: visits.id, day: visits.scheduledOn, reason: visits.unplacedReason })
+    for (const row of inserted) if (row.reason) unplaced.push({ visitId: row.id, day: row.day, reason: row.reason })
   }
   const byKey = new Map(planned.map(p => [p.key, p]))
   const existingById = new Map(existing.map(e => [e.id, e]))
@@ -68,7 +115,7 @@ export async function regenerateContractVisits(tx: Tx, contractId: string, clock
     await tx.update(visits).set({ status: 'cancelled', statusReason: 'No longer in the plan', sequence: sql`${visits.sequence} + 1` })
       .where(inArray(visits.id, r.cancel))
   }
-  return { inserted: r.insert.length, rescheduled: r.reschedule.length, cancelled: r.cancel.length }
+  return { inserted: r.insert.length, rescheduled: r.reschedule.length, cancelled: r.cancel.length, unplaced }
 }
 
 /** Cancels a contract's future, unstarted visits (pause, end, cancel), with the reason shown to people. */

@@ -40,6 +40,49 @@ describe('plans', () => {
   })
 })
 
+describe('visit windows on plan templates', () => {
+  it('a template keeps its season, rhythm and give-or-take; an old-style rule is read as its months', async () => {
+    const r = await api('/api/plans', {
+      method: 'POST', token: owner, body: {
+        ...plan('Window Plan'),
+        templates: [
+          { visitType: 'routine', rrule: 'FREQ=WEEKLY;INTERVAL=2', seasonFrom: '05-01', seasonTo: '09-30', toleranceDays: 3, durationMinutes: 60 },
+          { visitType: 'water_test', rrule: 'FREQ=MONTHLY;BYMONTH=12,1,2;BYDAY=1TU', durationMinutes: 30 },
+        ],
+      },
+    })
+    expect(r.status, JSON.stringify(r.body)).toBe(201)
+    const [routine, winter] = r.body.templates
+    expect(routine).toMatchObject({ rrule: 'FREQ=WEEKLY;INTERVAL=2', seasonFrom: '05-01', seasonTo: '09-30', toleranceDays: 3 })
+    // December, January and February: the season wraps the new year.
+    expect(winter).toMatchObject({ rrule: 'FREQ=MONTHLY', seasonFrom: '12-01', seasonTo: '02-29', toleranceDays: 0 })
+
+    const { customerId, featureId } = await newCustomerWithFeature('Window Customer')
+    const c = await api('/api/contracts', { method: 'POST', token: owner, body: { customerId, planId: r.body.id, featureIds: [featureId], termStart: `${nextYear}-01-01` } })
+    await api(`/api/contracts/${c.body.id}/actions`, { method: 'POST', token: owner, body: { action: 'activate' } })
+    const visits = (await api(`/api/visits?contractId=${c.body.id}&pageSize=100`, { token: owner })).body.rows as Array<{ visitType: string, scheduledOn: string }>
+    const routineDays = visits.filter(v => v.visitType === 'routine').map(v => v.scheduledOn)
+    // Every 2 weeks from 1 May to 30 September is 11 occurrences (1 May + 14 days × 0…10).
+    expect(routineDays).toHaveLength(11)
+    for (const d of routineDays) expect(d >= `${nextYear}-05-01` && d <= `${nextYear}-09-30`, d).toBe(true)
+    const winterMonths = new Set(visits.filter(v => v.visitType === 'water_test').map(v => v.scheduledOn.slice(5, 7)))
+    expect([...winterMonths].sort()).toEqual(['01', '02', '12'])
+  })
+
+  it('bad windows are 400 naming the field', async () => {
+    const body = (t: Record<string, unknown>) => ({ ...plan('Bad Window'), templates: [{ visitType: 'routine', rrule: 'FREQ=WEEKLY', durationMinutes: 60, ...t }] })
+    const badDay = await api('/api/plans', { method: 'POST', token: owner, body: body({ seasonFrom: '04-31', seasonTo: '05-31' }) })
+    expect(badDay.status).toBe(400)
+    expect(badDay.body.data.fields['templates.0.seasonFrom']).toMatch(/April has no day 31/)
+    const wide = await api('/api/plans', { method: 'POST', token: owner, body: body({ seasonFrom: '05-01', seasonTo: '09-30', toleranceDays: 4 }) })
+    expect(wide.status).toBe(400)
+    expect(wide.body.data.fields['templates.0.toleranceDays']).toMatch(/less than half/)
+    const byDay = await api('/api/plans', { method: 'POST', token: owner, body: body({ rrule: 'FREQ=WEEKLY;BYDAY=TU', seasonFrom: '05-01', seasonTo: '09-30' }) })
+    expect(byDay.status).toBe(400)
+    expect(byDay.body.data.fields['templates.0.rrule']).toBeTruthy()
+  })
+})
+
 describe('contracts and their visits', () => {
   it('activating generates the term\'s visits on working days; editing the plan regenerates only future unstarted ones', async () => {
     const p = (await api('/api/plans', { method: 'POST', token: owner, body: plan('Regenerate Me') })).body
@@ -74,7 +117,14 @@ describe('contracts and their visits', () => {
     const full = (await api(`/api/plans/${p.id}`, { token: owner })).body
     const edited = await api(`/api/plans/${p.id}`, {
       method: 'PATCH', token: owner,
-      body: { templates: full.templates.map((t: { id: string, visitType: string, rrule: string, durationMinutes: number }) => ({ id: t.id, visitType: t.visitType, durationMinutes: t.durationMinutes, rrule: t.visitType === 'routine' ? 'FREQ=WEEKLY;INTERVAL=2;BYMONTH=5,6,7,8,9;BYDAY=TH' : t.rrule })) },
+      body: {
+        templates: full.templates.map((t: { id: string, visitType: string, rrule: string, seasonFrom: string, seasonTo: string, toleranceDays: number, durationMinutes: number }) => ({
+          id: t.id, visitType: t.visitType, durationMinutes: t.durationMinutes,
+          ...(t.visitType === 'routine'
+            ? { rrule: 'FREQ=WEEKLY;INTERVAL=2', seasonFrom: '06-01', seasonTo: '09-30', toleranceDays: 3 }
+            : { rrule: t.rrule, seasonFrom: t.seasonFrom, seasonTo: t.seasonTo, toleranceDays: t.toleranceDays }),
+        })),
+      },
     })
     expect(edited.status, JSON.stringify(edited.body)).toBe(200)
     expect(edited.body.regeneratedContracts).toBe(1)
@@ -82,7 +132,12 @@ describe('contracts and their visits', () => {
     const routine = after.filter((v: { visitType: string, status: string }) => v.visitType === 'routine' && v.status !== 'cancelled')
     const keptMoved = after.find((v: { id: string }) => v.id === moved.id)
     expect(keptMoved.scheduledOn).toBe(`${nextYear}-05-08`)
-    for (const v of routine.filter((v: { id: string }) => v.id !== moved.id)) expect(new Date(`${v.scheduledOn}T12:00:00Z`).getUTCDay(), v.scheduledOn).toBe(4)
+    // The routine visits now fall in the new season, June to September.
+    const followers = routine.filter((v: { id: string }) => v.id !== moved.id)
+    expect(followers.length).toBeGreaterThan(0)
+    for (const v of followers) {
+      expect(v.scheduledOn >= `${nextYear}-06-01` && v.scheduledOn <= `${nextYear}-09-30`, v.scheduledOn).toBe(true)
+    }
     // Nothing duplicated: one visit per key, and the count of live routine visits is what the rule yields.
     const ids = after.map((v: { id: string }) => v.id)
     expect(new Set(ids).size).toBe(ids.length)

@@ -38,6 +38,8 @@ export const MATRIX: Record<string, Who[] | 'public'> = {
   'PATCH /api/contracts/:id': ['owner'],
   'POST /api/contracts/:id/actions': ['owner'],
   'GET /api/schedule': ['owner', 'technician'],
+  'POST /api/schedule/replan': ['owner'],
+  'GET /api/schedule/unplaced': ['owner'],
   'GET /api/technicians': ['owner', 'technician'],
   'PATCH /api/technicians/:id': ['owner'],
   'GET /api/visits': ['owner', 'technician', 'customer'],

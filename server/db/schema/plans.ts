@@ -22,14 +22,20 @@ export const plans = pgTable('plans', {
   ...timestamps,
 }, t => [index('plans_company_idx').on(t.companyId)])
 
-/** The visits a plan includes: a type, an RFC 5545 recurrence rule over the term, a duration and a checklist. */
+/** The visits a plan includes: a type, a window in the season (rhythm, season, tolerance; see visit-windows.ts), a duration and a checklist. */
 export const planVisitTemplates = pgTable('plan_visit_templates', {
   id: id(),
   planId: uuid('plan_id').notNull().references(() => plans.id, { onDelete: 'cascade' }),
   position: integer('position').notNull().default(0),
   visitType: visitType('visit_type').notNull(),
-  /** RRULE body without DTSTART, e.g. FREQ=WEEKLY;INTERVAL=2;BYMONTH=5,6,7,8,9;BYDAY=TU */
+  /** The rhythm: an RRULE body with FREQ and INTERVAL only, e.g. FREQ=WEEKLY;INTERVAL=2; FREQ=YEARLY = once in the season. */
   rrule: text('rrule').notNull(),
+  /** The season's first day, 'MM-DD'. */
+  seasonFrom: text('season_from').notNull().default('01-01'),
+  /** The season's last day, 'MM-DD' (earlier than season_from when it wraps the new year). */
+  seasonTo: text('season_to').notNull().default('12-31'),
+  /** Days either side of each occurrence the visit may move. */
+  toleranceDays: integer('tolerance_days').notNull().default(0),
   durationMinutes: integer('duration_minutes').notNull(),
   checklist: jsonb('checklist').$type<ChecklistItem[]>().notNull().default([]),
   ...timestamps,

@@ -36,6 +36,8 @@ export const visits = pgTable('visits', {
   startedAt: timestamp('started_at', { withTimezone: true }),
   finishedAt: timestamp('finished_at', { withTimezone: true }),
   statusReason: text('status_reason').notNull().default(''),
+  /** Why the planner found no day and technician for this visit (it then waits, unassigned, on its preferred day); null when placed. */
+  unplacedReason: text('unplaced_reason'),
   /** Shown in the visit report. */
   customerNotes: text('customer_notes').notNull().default(''),
   /** Staff only. */

@@ -1,0 +1,86 @@
+// Places a contract's new visits with the season planner (shared/utils/planner): inside their
+// windows, on open working days, within each technician's capacity (visits and driving), next to
+// the company's already-scheduled visits in the term, which stay where they are and count as
+// locked. What finds no place keeps its preferred day, unassigned, with the planner's reason.
+import { and, asc, eq, gte, inArray, isNotNull, isNull, lte, ne, or } from 'drizzle-orm'
+import { planSeason, type PlannerTechnician, type PlannerVisit } from '../../shared/utils/planner/index'
+import type { LocalDate } from '../../shared/utils/recurrence'
+import { sites, staffProfiles, users, visits } from '../db/schema'
+import type { Tx } from '../utils/db'
+
+export interface VisitToPlace {
+  key: string
+  earliest: LocalDate
+  latest: LocalDate
+  preferred: LocalDate
+  durationMinutes: number
+  siteId: string
+  customerId: string
+}
+
+export interface VisitPlacement { day: LocalDate, technicianId: string | null, unplacedReason: string | null }
+
+export interface PlanningCompany { id: string, workingDays: readonly number[], baseLatitude: number | null, baseLongitude: number | null }
+
+/** The company's active technicians as the planner sees them (home: their own, else the company's base). */
+export async function planningTechnicians(tx: Tx, company: PlanningCompany): Promise<PlannerTechnician[]> {
+  const rows = await tx.select({ id: users.id, name: users.name, capacity: staffProfiles.capacityMinutes, lat: staffProfiles.homeLatitude, lon: staffProfiles.homeLongitude })
+    .from(users).leftJoin(staffProfiles, eq(staffProfiles.userId, users.id))
+    .where(and(eq(users.companyId, company.id), eq(users.role, 'technician'), eq(users.active, true)))
+    .orderBy(asc(users.name))
+  const base = companyBase(company)
+  return rows.map(t => ({ id: t.id, name: t.name, capacityMinutes: t.capacity ?? 420, workingDays: company.workingDays, home: { lat: t.lat ?? base.lat, lon: t.lon ?? base.lon } }))
+}
+
+export function companyBase(company: PlanningCompany) {
+  return { lat: company.baseLatitude ?? 0, lon: company.baseLongitude ?? 0 }
+}
+
+export async function placeNewVisits(
+  tx: Tx, company: PlanningCompany, term: { start: LocalDate, end: LocalDate }, closed: readonly LocalDate[],
+  toPlace: readonly VisitToPlace[], excludeContractId: string,
+): Promise<Map<string, VisitPlacement>> {
+  const out = new Map<string, VisitPlacement>()
+  if (!toPlace.length) return out
+  const technicians = await planningTechnicians(tx, company)
+  if (!technicians.length) {
+    for (const v of toPlace) out.set(v.key, { day: v.preferred, technicianId: null, unplacedReason: 'No technician to plan with yet: add one to the team, then plan these weeks again' })
+    return out
+  }
+  const booked = await tx.select({ id: visits.id, day: visits.scheduledOn, technicianId: visits.technicianId, durationMinutes: visits.durationMinutes, siteId: visits.siteId, customerId: visits.customerId })
+    .from(visits)
+    .where(and(
+      eq(visits.companyId, company.id), eq(visits.status, 'scheduled'), isNotNull(visits.technicianId),
+      gte(visits.scheduledOn, term.start), lte(visits.scheduledOn, term.end),
+      or(isNull(visits.contractId), ne(visits.contractId, excludeContractId)),
+    ))
+  const siteIds = [...new Set([...toPlace.map(v => v.siteId), ...booked.map(b => b.siteId)])]
+  const siteRows = await tx.select({ id: sites.id, lat: sites.latitude, lon: sites.longitude }).from(sites).where(inArray(sites.id, siteIds))
+  const base = companyBase(company)
+  const where = new Map(siteRows.map(s => [s.id, { lat: s.lat ?? base.lat, lon: s.lon ?? base.lon }]))
+  const at = (siteId: string) => where.get(siteId) ?? base
+  const techIds = new Set(technicians.map(t => t.id))
+  const planner: PlannerVisit[] = [
+    ...booked.filter(b => techIds.has(b.technicianId!)).map(b => ({
+      id: `locked:${b.id}`, windowEarliest: b.day, windowLatest: b.day, preferred: b.day, durationMinutes: Math.max(1, b.durationMinutes),
+      siteId: b.siteId, customerId: b.customerId, ...at(b.siteId), locked: { day: b.day, technicianId: b.technicianId! },
+    })),
+    ...toPlace.map(v => ({
+      id: `new:${v.key}`, windowEarliest: v.earliest, windowLatest: v.latest, preferred: v.preferred, durationMinutes: Math.max(1, v.durationMinutes),
+      siteId: v.siteId, customerId: v.customerId, ...at(v.siteId),
+    })),
+  ]
+  const plan = planSeason({
+    visits: planner, closedDays: closed,
+    technicians,
+  })
+  for (const p of plan.placed) {
+    if (p.visitId.startsWith('new:')) out.set(p.visitId.slice(4), { day: p.day, technicianId: p.technicianId, unplacedReason: null })
+  }
+  for (const u of plan.unplaced) {
+    if (!u.visitId.startsWith('new:')) continue
+    const v = toPlace.find(x => `new:${x.key}` === u.visitId)!
+    out.set(v.key, { day: v.preferred, technicianId: null, unplacedReason: u.reason })
+  }
+  return out
+}
