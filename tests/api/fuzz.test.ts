@@ -146,7 +146,8 @@ describe('hostile input never gives a 500', () => {
     }
   })
 
-  const d = () => new Date().toISOString().slice(0, 10)
+  /** Any real calendar day will do: the case is about the impossible one beside it. */
+  const DAY = '2027-05-10'
   const line = (quantity: number) => ({ kind: 'labour', description: 'Big job', quantity, unitPriceMinor: 100_000_000 })
   const CASES: Array<{ name: string, who: Who, method?: string, path: () => string, body?: () => unknown, field?: string }> = [
     { name: 'NUL in a list search', who: 'owner', path: () => '/api/customers?q=%00', field: 'q' },
@@ -181,7 +182,7 @@ describe('hostile input never gives a 500', () => {
     { name: 'an impossible move date', who: 'owner', method: 'PATCH', path: () => `/api/visits/${ids.visits}`, body: () => ({ scheduledOn: '2026-02-30', moveReason: 'x' }), field: 'scheduledOn' },
     { name: 'a year-0 customer test', who: 'customer', method: 'POST', path: () => '/api/portal/readings', body: () => ({ id: randomUUID(), featureId: randomUUID(), takenAt: '0000-01-01T00:00:00Z', pH: 7 }), field: 'takenAt' },
     { name: 'a year-0 preferred date', who: 'customer', method: 'POST', path: () => '/api/requests', body: () => ({ siteId: randomUUID(), kind: 'leak', preferredDates: ['0000-01-01'], description: 'The pond is leaking fast' }), field: 'preferredDates.0' },
-    { name: 'a date sent today as an impossible one', who: 'owner', path: () => `/api/schedule?from=${d()}&to=${d().slice(0, 8)}32`, field: 'to' },
+    { name: 'a real from-day with an impossible to-day', who: 'owner', path: () => `/api/schedule?from=${DAY}&to=${DAY.slice(0, 8)}32`, field: 'to' },
   ]
 
   for (const c of CASES) {

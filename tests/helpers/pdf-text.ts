@@ -1,6 +1,6 @@
 // Text of the PDFs pdfkit writes uncompressed (the invoice): glyph codes of embedded fonts mapped
 // back through each font's ToUnicode CMap, built-in fonts read as WinAnsi bytes, one BT … ET
-// block per line of text; compressed streams are inflated. The same reader as tests/unit/invoice-pdf.test.ts (to be shared).
+// block per line of text; compressed streams are inflated.
 
 import { inflateSync } from 'node:zlib'
 
