@@ -2,12 +2,13 @@
 // nothing; applying re-reads the visits, refuses (409) when anything changed since the preview,
 // and writes exactly the preview's moves in one transaction.
 import { createHash } from 'node:crypto'
-import { and, asc, between, eq, gte, inArray, isNotNull, lte, sql } from 'drizzle-orm'
+import { and, asc, between, eq, gte, inArray, isNotNull, isNull, lte, sql } from 'drizzle-orm'
 import { replanDateRange, type CurrentPlacement, type PlannerMove, type PlannerVisit } from '../../shared/utils/planner/index'
 import { localTimeToInstant, type LocalDate } from '../../shared/utils/recurrence'
 import { expandVisitSchedule } from '../../shared/utils/visit-windows'
 import { templateVisitSchedule } from '../../shared/schemas/visit-schedule'
-import { closedDays, companies, contracts, planVisitTemplates, sites, visits } from '../db/schema'
+import { closedDays, companies, contracts, customers, planVisitTemplates, sites, visits } from '../db/schema'
+import { dayLoad } from '../../shared/utils/day-load'
 import type { SessionUser } from '../utils/auth'
 import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
@@ -72,18 +73,67 @@ async function loadReplan(tx: Tx, companyId: string, range: Range) {
   return { company: company!, technicians, closed, plannerVisits, current, token }
 }
 
+/** One technician-day's minutes (visits and driving) before and after the preview's moves. */
+export interface ReplanDayLoad { day: LocalDate, technicianId: string, capacityMinutes: number, beforeMinutes: number, afterMinutes: number }
+
 function preview(state: Awaited<ReturnType<typeof loadReplan>>, range: Range) {
-  if (!state.technicians.length) return { moves: [] as PlannerMove[], days: [] }
+  if (!state.technicians.length) return { moves: [] as Array<PlannerMove & { why: string }>, days: [], loads: [] as ReplanDayLoad[] }
   const p = replanDateRange({ visits: state.plannerVisits, technicians: state.technicians, closedDays: state.closed }, state.current, range)
-  return { moves: p.moves, days: p.plan.days }
+  // The load of each technician-day in the range as it is now: placed and locked visits.
+  const byId = new Map(state.plannerVisits.map(v => [v.id, v]))
+  const now = new Map<string, Array<{ id: string, durationMinutes: number, lat: number, lon: number }>>()
+  const put = (day: LocalDate, tech: string, id: string) => {
+    const v = byId.get(id)
+    if (!v || day < range.from || day > range.to) return
+    const k = `${day}|${tech}`
+    now.set(k, [...(now.get(k) ?? []), { id, durationMinutes: v.durationMinutes, lat: v.lat, lon: v.lon }])
+  }
+  for (const c of state.current) put(c.day, c.technicianId, c.visitId)
+  for (const v of state.plannerVisits) if (v.locked) put(v.locked.day, v.locked.technicianId, v.id)
+  const tech = new Map(state.technicians.map(t => [t.id, t]))
+  const before = new Map([...now].map(([k, stops]) => {
+    const [, tid] = k.split('|') as [string, string]
+    const t = tech.get(tid)
+    return [k, dayLoad(stops, t?.home ?? null, t?.capacityMinutes ?? 0)]
+  }))
+  const after = new Map(p.plan.days.filter(d => d.day >= range.from && d.day <= range.to).map(d => [`${d.day}|${d.technicianId}`, d]))
+  const touched = new Set(p.moves.flatMap(m => [m.from, m.to].flatMap(x => (x ? [`${x.day}|${x.technicianId}`] : []))))
+  const loads: ReplanDayLoad[] = [...touched].sort().map((k) => {
+    const [day, technicianId] = k.split('|') as [LocalDate, string]
+    const a = after.get(k)
+    return {
+      day, technicianId, capacityMinutes: tech.get(technicianId)?.capacityMinutes ?? 0,
+      beforeMinutes: before.get(k)?.totalMinutes ?? 0, afterMinutes: a ? a.visitMinutes + a.driveMinutes : 0,
+    }
+  })
+  const moves = p.moves.map(m => ({ ...m, why: moveWhy(m, before) }))
+  return { moves, days: p.plan.days, loads }
+}
+
+/** Why the planner moves a visit, in plain words. */
+function moveWhy(m: PlannerMove, before: Map<string, { over: boolean }>): string {
+  if (!m.to) return m.reason ?? 'No day with room in its window'
+  if (!m.from) return 'It had no place yet; this day has room'
+  if (before.get(`${m.from.day}|${m.from.technicianId}`)?.over) return 'Its day was over capacity'
+  if (m.from.day === m.to.day) return 'Evens out the technicians\' load that day'
+  return 'Groups it with nearby stops and evens out the days'
+}
+
+/** Customer names and visit types of the visits a preview moves, for the board to show. */
+async function movedVisits(tx: Tx, companyId: string, ids: string[]) {
+  if (!ids.length) return []
+  return tx.select({ id: visits.id, customerName: customers.name, visitType: visits.visitType, durationMinutes: visits.durationMinutes })
+    .from(visits).innerJoin(customers, eq(customers.id, visits.customerId))
+    .where(and(eq(visits.companyId, companyId), inArray(visits.id, ids)))
 }
 
 /** The moves "plan these weeks again" would make; nothing changes. */
 export async function replanPreview(actor: SessionUser, range: Range) {
   return useDb().transaction(async (tx) => {
     const state = await loadReplan(tx, actor.companyId, range)
-    const { moves, days } = preview(state, range)
-    return { from: range.from, to: range.to, token: state.token, moves, days, applied: false }
+    const { moves, days, loads } = preview(state, range)
+    const details = await movedVisits(tx, actor.companyId, moves.map(m => m.visitId))
+    return { from: range.from, to: range.to, token: state.token, moves, days, loads, visits: details, applied: false }
   })
 }
 
@@ -94,7 +144,7 @@ export async function replanApply(actor: SessionUser, range: Range, token: strin
     await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${`replan:${actor.companyId}`}))`)
     const state = await loadReplan(tx, actor.companyId, range)
     if (state.token !== token) throw httpError(409, 'The schedule changed since the preview: look at the new preview before applying')
-    const { moves, days } = preview(state, range)
+    const { moves, days, loads } = preview(state, range)
     for (const m of moves) {
       if (m.to) {
         await tx.update(visits).set({
@@ -108,17 +158,22 @@ export async function replanApply(actor: SessionUser, range: Range, token: strin
       }
     }
     await recordAudit(tx, { action: 'schedule.replanned', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'company', subjectId: actor.companyId, ip, detail: { from: range.from, to: range.to, moves: moves.length } })
-    return { from: range.from, to: range.to, token: state.token, moves, days, applied: true }
+    const details = await movedVisits(tx, actor.companyId, moves.map(m => m.visitId))
+    return { from: range.from, to: range.to, token: state.token, moves, days, loads, visits: details, applied: true }
   })
 }
 
-/** The board's tray: scheduled visits in the range that the planner could not place, with its reason. */
+/**
+ * The board's tray: scheduled visits in the range that the planner could not place and that nobody
+ * has assigned since, with its reason (which names the window).
+ */
 export async function unplacedVisits(actor: SessionUser, range: Range) {
   const rows = await useDb().select({
-    id: visits.id, scheduledOn: visits.scheduledOn, visitType: visits.visitType, durationMinutes: visits.durationMinutes,
-    customerId: visits.customerId, siteId: visits.siteId, contractId: visits.contractId, reason: visits.unplacedReason,
-  }).from(visits)
-    .where(and(eq(visits.companyId, actor.companyId), eq(visits.status, 'scheduled'), isNotNull(visits.unplacedReason), between(visits.scheduledOn, range.from, range.to)))
+    id: visits.id, scheduledOn: visits.scheduledOn, visitType: visits.visitType, durationMinutes: visits.durationMinutes, status: visits.status,
+    customerId: visits.customerId, customerName: customers.name, siteId: visits.siteId, siteLine1: sites.line1, siteCity: sites.city,
+    contractId: visits.contractId, reason: visits.unplacedReason, technicianId: visits.technicianId, moveReason: visits.moveReason,
+  }).from(visits).innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
+    .where(and(eq(visits.companyId, actor.companyId), eq(visits.status, 'scheduled'), isNotNull(visits.unplacedReason), isNull(visits.technicianId), between(visits.scheduledOn, range.from, range.to)))
     .orderBy(asc(visits.scheduledOn), asc(visits.id))
     .limit(1000)
   return { rows }
