@@ -68,10 +68,10 @@ describe('the schedule board: many visits at once, and visits that will not happ
       await day.getByText(fx.planned[0]!.name).waitFor()
 
       // Skipped and cancelled visits carry a word, not only a look; they cannot be selected.
-      const cancelledCard = day.getByRole('button', { name: new RegExp(fx.cancelled.name) })
+      const cancelledCard = day.getByRole('button', { name: new RegExp(`^${fx.cancelled.name}`) })
       await expect(cancelledCard.getAttribute('data-status')).resolves.toBe('cancelled')
       await expect(cancelledCard.textContent()).resolves.toContain('Cancelled')
-      const skippedCard = day.getByRole('button', { name: new RegExp(fx.skipped.name) })
+      const skippedCard = day.getByRole('button', { name: new RegExp(`^${fx.skipped.name}`) })
       await expect(skippedCard.textContent()).resolves.toContain('Skipped')
       expect(await day.getByRole('checkbox', { name: new RegExp(`Select ${fx.cancelled.name}`) }).count()).toBe(0)
       // Dario's load counts the driving between the stops.
