@@ -98,6 +98,17 @@ describe('moving one visit by hand on the board', () => {
     await page.locator(`section[data-day="${NEXT}"]`).getByText('Over capacity').waitFor()
     expect((await api(`/api/visits/${b!.visitId}`, { token: owner })).body).toMatchObject({ scheduledOn: NEXT, technicianId: dario.id })
     await keepShot(page, 'board-dragged-desktop')
+
+    // Dragged onto a technician's button on a day: that day, that technician.
+    const tess = (await technicians(owner)).tess
+    await page.getByTestId('drop-note').getByRole('button', { name: 'Dismiss' }).click()
+    await page.locator(`section[data-day="${NEXT}"] li[data-visit="${b!.visitId}"]`).hover()
+    await page.mouse.down()
+    await page.mouse.move(10, 10, { steps: 5 })
+    await page.getByRole('button', { name: `Put ${b!.name} on Thu, Jun 10 with Tess Okafor` }).hover()
+    await page.mouse.up()
+    await page.getByTestId('drop-note').filter({ hasText: `Moved ${b!.name} to Thu, Jun 10 with Tess Okafor` }).waitFor()
+    expect((await api(`/api/visits/${b!.visitId}`, { token: owner })).body).toMatchObject({ scheduledOn: '2032-06-10', technicianId: tess.id })
     await context.close()
   })
 
