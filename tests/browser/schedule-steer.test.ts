@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { api, baseUrl, demo, tokenFor } from '../helpers/api'
 import { addDays } from '../../shared/utils/company-time'
-import { ARTIFACTS, launch, shot, signInThroughForm, VIEWPORTS, waitForHydration } from '../helpers/browser'
+import { allowPageErrors, ARTIFACTS, launch, shot, signInThroughForm, VIEWPORTS, waitForHydration } from '../helpers/browser'
 
 // Steering the planner from the board: moving one visit by hand (drag on a desktop, tap then tap
 // on a phone), the tray of what the planner could not place, and "plan these weeks again".
@@ -174,15 +174,25 @@ describe('plan these weeks again, from the board', () => {
       await panel.getByRole('button', { name: 'Show what would move' }).click()
       await panel.getByTestId('replan-progress').filter({ hasText: 'Planning week 2 of 2' }).waitFor()
       await panel.getByTestId('replan-count').filter({ hasText: /\d+ visits? would move/ }).waitFor()
-      const count = Number((await panel.getByTestId('replan-count').textContent())!.match(/(\d+) visits? would move/)![1])
+      const firstCount = Number((await panel.getByTestId('replan-count').textContent())!.match(/(\d+) visits? would move/)![1])
       // 12 hours of visits on a 7-hour day: at least three must go elsewhere.
-      expect(count).toBeGreaterThanOrEqual(3)
-      expect(await panel.getByTestId('replan-move').count()).toBe(count)
+      expect(firstCount).toBeGreaterThanOrEqual(3)
+      expect(await panel.getByTestId('replan-move').count()).toBe(firstCount)
       await expect(panel.getByTestId('replan-move').first().textContent()).resolves.toMatch(/Steer replan .*Mon, (Jun 6|Jul 4) · Tess Okafor → .*(over capacity|nearby|evens out)/i)
       // The preview changed nothing.
       expect(await snapshot()).toEqual(before)
       await keepShot(page, `board-replan-preview-${size}`)
 
+      // Someone changes one of these visits after the preview: applying it is refused, in words, and nothing moves.
+      allowPageErrors(/status of 409 \(Conflict\) \(.*\/api\/schedule\/replan\)$/)
+      expect((await api(`/api/visits/${ids[0]}`, { method: 'PATCH', token: owner, body: { durationMinutes: 110 } })).status).toBe(200)
+      await panel.getByRole('button', { name: /^Apply \d+ moves?$/ }).click()
+      await panel.getByTestId('replan-message').filter({ hasText: 'The schedule changed since this preview, so nothing was applied' }).waitFor()
+      expect(await snapshot()).toEqual(before)
+      await panel.getByRole('button', { name: 'Show a fresh preview' }).click()
+      await panel.getByTestId('replan-count').filter({ hasText: /\d+ visits? would move/ }).waitFor()
+      const count = Number((await panel.getByTestId('replan-count').textContent())!.match(/(\d+) visits? would move/)![1])
+      expect(count).toBeGreaterThanOrEqual(3)
       await panel.getByRole('button', { name: /^Apply \d+ moves?$/ }).click()
       await panel.getByTestId('replan-applied').filter({ hasText: `Applied ${count} move` }).waitFor()
       const after = await snapshot()
