@@ -3,8 +3,9 @@
 // autocannon at 1 and 50 connections for sign-in, the technician's Today, a feature's year of
 // readings, the invoices table, the revenue view and the water evaluation, each beside the same
 // query run straight through pg; the alert scan (incremental and full), renewing contracts, the
-// JavaScript each page loads, and that every list is paginated; and the season planner on a
-// generated season of the same size (pure: no database, no server; bench/planner.ts). Writes
+// JavaScript each page loads, and that every list is paginated; and the season planner on the
+// company's own season (bench/season.ts; --only planner runs just that, without the server;
+// --only planner-synthetic the older generated season of bench/planner.ts). Writes
 // bench/results/<time>.json and bench/results/summary.md, and names each budget met or missed.
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process'
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
@@ -18,10 +19,11 @@ import { chromium } from 'playwright-core'
 // @ts-expect-error plain ESM script without types
 import { clusterConfig, urlFor } from './db.mjs'
 import { runPlannerBench } from '../bench/planner'
+import { runSeasonBench } from '../bench/season'
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..')
 const { values } = parseArgs({ options: { 'customers': { type: 'string', default: '5000' }, 'duration': { type: 'string', default: '5' }, 'reseed': { type: 'boolean', default: false }, 'port': { type: 'string', default: '3299' }, 'summary-only': { type: 'boolean', default: false }, 'only': { type: 'string' } } })
-/** --only pages (or endpoints, alerts, renewals, pagination, planner): measure just that part and merge it into latest.json. */
+/** --only pages (or endpoints, alerts, renewals, pagination, planner, planner-synthetic): measure just that part and merge it into latest.json. */
 const want = (part: string) => !values.only || values.only.split(',').includes(part)
 const DURATION = Number(values.duration)
 const PORT = Number(values.port)
@@ -39,6 +41,13 @@ async function ensureData(pgc: pg.Client) {
   const has = await pgc.query(`select count(*)::int as n from information_schema.tables where table_name = 'readings'`).then(r => r.rows[0].n > 0).catch(() => false)
   const readings = has ? (await pgc.query('select count(*)::int as n from readings')).rows[0].n : 0
   return readings
+}
+
+/** True when the large company has windowed plan templates and technicians with homes (what the season bench plans with). */
+async function hasSeasonBook(pgc: pg.Client) {
+  const { rows: [r] } = await pgc.query(`select (select count(*) from plan_visit_templates where season_from <> '01-01' or season_to <> '12-31')::int as windows,
+    (select count(*) from staff_profiles where home_latitude is not null)::int as homes`)
+  return r.windows > 0 && r.homes > 0
 }
 
 async function startServer(): Promise<ChildProcess> {
@@ -100,10 +109,10 @@ async function main() {
     writeFileSync(resolve(dir, 'summary.md'), summaryMd(JSON.parse(readFileSync(resolve(dir, 'latest.json'), 'utf8'))))
     return
   }
-  // The season planner is pure: it runs before (and without) the database and the server.
-  const planner = want('planner') ? runPlannerBench(say) : undefined
-  if (values.only && values.only.split(',').every(p => p === 'planner')) {
-    saveResults({ planner })
+  // The synthetic season (pure: no database, no server), only when asked for by name.
+  const plannerSynthetic = values.only?.split(',').includes('planner-synthetic') ? runPlannerBench(say) : undefined
+  if (values.only && values.only.split(',').every(p => p === 'planner-synthetic')) {
+    saveResults({ plannerSynthetic })
     return
   }
   // How much data is there already? (A check only: the connection closes before any reseed drops the database.)
@@ -113,6 +122,8 @@ async function main() {
   try {
     await probe.connect()
     readings = await ensureData(probe)
+    // A large company seeded before its plans had windows and its technicians homes: make it again.
+    if (readings && !(await hasSeasonBook(probe))) readings = 0
   }
   catch {}
   await probe.end().catch(() => {})
@@ -129,11 +140,18 @@ async function main() {
   const counts = (await c.query(`select (select count(*) from customers)::int as customers, (select count(*) from water_features)::int as features, (select count(*) from contracts)::int as contracts,
     (select count(*) from visits)::int as visits, (select count(*) from readings)::int as readings, (select count(*) from invoices)::int as invoices`)).rows[0]
   say(`data: ${JSON.stringify(counts)}`)
+  const results: Record<string, unknown> = { at: new Date().toISOString(), counts, durationSeconds: DURATION, budgets: BUDGET, seedSeconds: results0.seedSeconds ?? null }
   const { rows: [co] } = await c.query(`select id from companies where name like 'Larchfield Pond Care%' limit 1`)
   const companyId = co.id as string
+  if (want('planner')) results.planner = await runSeasonBench(c, companyId, say)
+  if (plannerSynthetic) results.plannerSynthetic = plannerSynthetic
+  if (values.only && values.only.split(',').every(p => ['planner', 'planner-synthetic'].includes(p))) {
+    await c.end()
+    saveResults(results)
+    return
+  }
 
   const server = await startServer()
-  const results: Record<string, unknown> = { at: new Date().toISOString(), counts, durationSeconds: DURATION, budgets: BUDGET, seedSeconds: results0.seedSeconds ?? null, ...(planner ? { planner } : {}) }
   try {
     const login = async (email: string) => (await (await fetch(`${BASE}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password: 'demo-pond-2026' }) })).json() as { token: string }).token
     const owner = await login('owner@larchfield-scale.example')
@@ -306,11 +324,11 @@ function summaryMd(r: Record<string, any>) {
     for (const [p, kb] of Object.entries(r.pageJsKbGzip)) lines.push(`| ${p} | ${kb}${p.includes('/visits/') ? ` (budget ${r.budgets.visitPageJsKb} kB: ${ok((kb as number) <= r.budgets.visitPageJsKb)})` : ''} |`)
   }
   const pl = r.planner
-  if (pl) {
-    lines.push('', `Season planner (${pl.data.visits} visits of ${pl.data.customers} customers, ${pl.data.technicians} technicians, visit time ${(pl.data.visitMinutes / pl.data.capacityMinutes * 100).toFixed(0)} % of their time): planned in ${pl.planner.seconds.toFixed(1)} s (budget ${pl.budgets.seconds} s: ${ok(pl.met.seconds)}); technician-days over capacity ${pl.planner.daysOverCapacity} (budget ${pl.budgets.daysOverCapacity}: ${ok(pl.met.daysOverCapacity)}); unplaced ${pl.planner.unplaced} (${Object.entries(pl.planner.unplacedByCode).map(([k, v]) => `${k} ${v}`).join(', ')}), baseline ${pl.baseline.unplaced}; driving ${pl.planner.totalKm} km against the baseline's ${pl.baseline.totalKm} km, ${pl.savingPercent.toFixed(1)} % less (${ok(pl.met.drivesLess)}), per placed visit ${pl.planner.kmPerPlacedVisit.toFixed(2)} against ${pl.baseline.kmPerPlacedVisit.toFixed(2)} km. Technician time used per month: ${Object.entries(pl.monthlyUse ?? {}).map(([m, u]) => `${m.slice(5)} ${Math.round((u as number) * 100)} %`).join(', ')} (the unplaced visits fall in the full months).`)
-    const f = pl.withFortyTechnicians
-    if (f) lines.push('', `The same season with 40 technicians: ${f.planner.unplaced} unplaced, ${f.planner.daysOverCapacity} technician-days over capacity, planned in ${f.planner.seconds.toFixed(1)} s; driving ${f.planner.totalKm} km against the baseline's ${f.baseline.totalKm} km (${f.baseline.unplaced} unplaced), ${f.savingPercent.toFixed(1)} % less.`)
+  if (pl?.data?.source) {
+    lines.push('', `Season planner on the large company's own season (${pl.data.visits} visits of ${pl.data.customers} customers, ${pl.data.technicians} technicians, ${pl.data.season.start} to ${pl.data.season.end}, visit time ${(pl.data.visitMinutes / pl.data.capacityMinutes * 100).toFixed(0)} % of their time): planned in ${pl.planner.seconds.toFixed(1)} s (budget < ${pl.budgets.seconds} s: ${ok(pl.met.seconds)}); technician-days over capacity ${pl.planner.daysOverCapacity} (budget ${pl.budgets.daysOverCapacity}: ${ok(pl.met.daysOverCapacity)}); unplaced ${pl.planner.unplaced}${pl.planner.unplaced ? ` (${Object.entries(pl.unplaced.groups).map(([k, v]) => `${v} ${k}`).join('; ')})` : ''}, baseline ${pl.baseline.unplaced}; driving ${pl.planner.totalKm} km against the baseline's ${pl.baseline.totalKm} km, ${pl.savingPercent.toFixed(1)} % less (budget: less than the baseline: ${ok(pl.met.drivesLess)}), per placed visit ${pl.planner.kmPerPlacedVisit.toFixed(2)} against ${pl.baseline.kmPerPlacedVisit.toFixed(2)} km.`)
   }
+  const syn = r.plannerSynthetic
+  if (syn) lines.push('', `Synthetic season (bench/planner.ts, ${syn.data.visits} visits, ${syn.data.technicians} technicians): planned in ${syn.planner.seconds.toFixed(1)} s; ${syn.planner.daysOverCapacity} technician-days over capacity; ${syn.planner.unplaced} unplaced; ${syn.savingPercent.toFixed(1)} % less driving than the baseline.`)
   if (r.pagination) {
     lines.push('', 'Pagination (every list asked for 1,000 rows):', '')
     for (const [p, v] of Object.entries(r.pagination)) lines.push(`- \`${p}\`: ${v}`)

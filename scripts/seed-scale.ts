@@ -4,6 +4,9 @@
 // of contracts (≈ 3 N), their visits, about 1,000,000 water tests for N = 5,000, and the invoices
 // the contracts raise. It goes into its own database (rillbook_scale on the project-local server,
 // or DATABASE_URL with --url), made fresh unless --keep; progress is printed per step.
+// The current season's visits come from its plans' windowed templates (scripts/seed/scale-book.ts),
+// sites lie in invented towns and the technicians have capacity and homes, so the season bench
+// (bench/planner.ts) can plan the company's real season.
 import { parseArgs } from 'node:util'
 import pg from 'pg'
 // @ts-expect-error plain ESM script without types
@@ -13,6 +16,9 @@ import { runMigrations } from './migrate.mjs'
 import { ensureDefaultProfiles } from '../server/services/range-profiles'
 import { closeDb, useDb } from '../server/utils/db'
 import { hashPassword } from '../server/utils/password'
+import { windowVisitDates } from '../server/services/visit-generation'
+import { buildVisitSchedule } from '../shared/utils/visit-windows'
+import { SCALE_PLANS, SCALE_TECHNICIANS, scalePlaces } from './seed/scale-book'
 
 const { values } = parseArgs({ options: { customers: { type: 'string', default: '5000' }, database: { type: 'string', default: 'rillbook_scale' }, url: { type: 'string' }, keep: { type: 'boolean', default: false } } })
 const N = Number(values.customers)
@@ -56,17 +62,32 @@ async function main() {
     await step('staff', `insert into users (company_id, email, name, role, password_hash)
       select $1, case when g = 0 then 'owner@larchfield-scale.example' else 'tech' || g || '@larchfield-scale.example' end,
              case when g = 0 then 'Scale Owner' else 'Technician ' || g end, case when g = 0 then 'owner'::user_role else 'technician'::user_role end, $2
-      from generate_series(0, 20) g`, [companyId, hash])
-    await step('plans', `insert into plans (company_id, name, price_minor, currency, billing_cadence, term_months)
-      values ($1, 'Seasonal Care', 145000, 'USD', 'yearly', 12), ($1, 'Koi Keeper, all year', 18900, 'USD', 'monthly', 12),
-             ($1, 'Spring & Fall Essentials', 32500, 'USD', 'per_visit', 12), ($1, 'Pondless Tune-Up', 39500, 'USD', 'yearly', 12)`, [companyId])
-    await c.query(`insert into plan_visit_templates (plan_id, visit_type, rrule, duration_minutes) select id, 'routine', 'FREQ=WEEKLY;INTERVAL=3;BYMONTH=3,4,5,6,7,8,9,10,11', 60 from plans where company_id = $1`, [companyId])
+      from generate_series(0, $3::int) g`, [companyId, hash, SCALE_TECHNICIANS])
+    const place = scalePlaces()
+    const { rows: techRows } = await c.query(`select id from users where company_id = $1 and role = 'technician' order by email`, [companyId])
+    const homes = techRows.map(() => place())
+    await step('technicians\' days and homes', `insert into staff_profiles (user_id, capacity_minutes, home_latitude, home_longitude)
+      select * from unnest($1::uuid[], $2::int[], $3::float8[], $4::float8[])`, [techRows.map(t => t.id), techRows.map((_, i) => 390 + 15 * (i % 7)), homes.map(h => h.lat), homes.map(h => h.lon)])
+    await step('closed days', `insert into closed_days (company_id, day, reason) select $1, d, 'Company holiday' from unnest($2::date[]) d`,
+      [companyId, [year - 2, year - 1, year, year + 1].flatMap(y => [`${y}-01-01`, `${y}-07-04`, `${y}-11-26`, `${y}-12-24`, `${y}-12-25`])])
+    for (const p of SCALE_PLANS) {
+      const { rows: [plan] } = await c.query(`insert into plans (company_id, name, price_minor, currency, billing_cadence, term_months) values ($1, $2, $3, 'USD', $4, 12) returning id`, [companyId, p.name, p.priceMinor, p.billingCadence])
+      for (const [position, t] of p.templates.entries()) {
+        const w = buildVisitSchedule(t.form)
+        await c.query(`insert into plan_visit_templates (plan_id, position, visit_type, rrule, season_from, season_to, tolerance_days, duration_minutes) values ($1, $2, $3, $4, $5, $6, $7, $8)`,
+          [plan.id, position, t.visitType, w.rrule, w.from, w.to, w.toleranceDays, t.minutes])
+      }
+    }
+    say(`plans: ${SCALE_PLANS.length}`)
     await step('customers', `insert into customers (company_id, name, kind, billing_line1, billing_city, billing_postcode, created_at)
       select $1, 'Household ' || lpad(g::text, 6, '0'), (case when g % 17 = 0 then 'business' else 'household' end)::customer_kind, (10 + g % 900) || ' Reed Street', 'Larchfield', '54' || lpad((g % 1000)::text, 3, '0'), now() - (g % 900) * interval '1 day'
       from generate_series(1, $2::int) g`, [companyId, N])
     await step('contacts', `insert into customer_contacts (customer_id, name, email) select id, 'Contact of ' || name, 'c' || substr(id::text, 1, 8) || '@households.example' from customers where company_id = $1`, [companyId])
-    await step('sites', `insert into sites (company_id, customer_id, name, line1, city, latitude, longitude)
-      select $1, id, 'Home', billing_line1, 'Larchfield', 44.05 + random() * 0.2, -91.5 + random() * 0.3 from customers where company_id = $1`, [companyId])
+    await step('sites', `insert into sites (company_id, customer_id, name, line1, city) select $1, id, 'Home', billing_line1, 'Larchfield' from customers where company_id = $1`, [companyId])
+    const { rows: siteRows } = await c.query(`select id from sites where company_id = $1 order by customer_id`, [companyId])
+    const spots = siteRows.map(() => place())
+    await step('site positions (in towns)', `update sites s set latitude = x.lat, longitude = x.lon from unnest($1::uuid[], $2::float8[], $3::float8[]) x(id, lat, lon) where s.id = x.id`,
+      [siteRows.map(r => r.id), spots.map(p => p.lat), spots.map(p => p.lon)])
     await step('water features', `insert into water_features (company_id, customer_id, site_id, name, kind, shape, surface_area_m2, computed_volume_l, equipment, fish)
       select s.company_id, s.customer_id, s.id, case when k = 1 then 'Pond' else 'Waterfall' end,
              (case when k = 2 then 'pondless_waterfall' when abs(hashtext(s.id::text)) % 3 = 0 then 'koi_pond' else 'water_garden' end)::feature_kind,
@@ -80,17 +101,19 @@ async function main() {
              'USD', true, season.start::timestamptz, case when season.start < $2::date then (season.start + interval '12 months')::timestamptz end
       from customers c
       cross join (select unnest($3::date[]) as start) season
-      join lateral (select id from plans where company_id = c.company_id order by name offset (abs(hashtext(c.id::text)) % 4) limit 1) p on true
-      where c.company_id = $1 and abs(hashtext(c.id::text || season.start::text)) % 20 <> 0`, [companyId, seasons[2], seasons])
+      join lateral (select id from plans where company_id = c.company_id and name = (case when abs(hashtext(c.id::text)) % 100 < $4 then $5 when abs(hashtext(c.id::text)) % 100 < $6 then $7 else $8 end)) p on true
+      where c.company_id = $1 and abs(hashtext(c.id::text || season.start::text)) % 20 <> 0`,
+    [companyId, seasons[2], seasons, Math.round(SCALE_PLANS[0]!.share * 100), SCALE_PLANS[0]!.name, Math.round((SCALE_PLANS[0]!.share + SCALE_PLANS[1]!.share) * 100), SCALE_PLANS[1]!.name, SCALE_PLANS[2]!.name])
     await step('contract features', `insert into contract_features (contract_id, feature_id)
       select ct.id, f.id from contracts ct join water_features f on f.customer_id = ct.customer_id where ct.company_id = $1`, [companyId])
-    await step('visits', `insert into visits (company_id, contract_id, customer_id, site_id, visit_type, status, scheduled_on, starts_at, duration_minutes, technician_id, finished_at)
+    await step('visits (earlier seasons)', `insert into visits (company_id, contract_id, customer_id, site_id, visit_type, status, scheduled_on, starts_at, duration_minutes, technician_id, finished_at)
       select ct.company_id, ct.id, ct.customer_id, s.id, 'routine', (case when d.day < $2::date then 'done' else 'scheduled' end)::visit_status, d.day,
              (d.day + time '14:00') at time zone 'UTC', 60, t.id, case when d.day < $2::date then (d.day + time '15:00') at time zone 'UTC' end
       from contracts ct join sites s on s.customer_id = ct.customer_id
       cross join lateral (select (ct.term_start + (14 + 21 * k) * interval '1 day')::date as day from generate_series(0, 12) k) d
-      join lateral (select id from users where company_id = ct.company_id and role = 'technician' order by email offset (abs(hashtext(ct.customer_id::text)) % 20) limit 1) t on true
-      where ct.company_id = $1`, [companyId, todayDate])
+      join lateral (select id from users where company_id = ct.company_id and role = 'technician' order by email offset (abs(hashtext(ct.customer_id::text)) % $3) limit 1) t on true
+      where ct.company_id = $1 and ct.term_start < $4::date`, [companyId, todayDate, SCALE_TECHNICIANS, seasons[2]])
+    await currentSeasonVisits(c, companyId, seasons[2]!, todayDate, techRows.map(t => t.id as string), say)
     await step('water tests', `insert into readings (id, company_id, feature_id, source, taken_at, temperature_c, ph, total_ammonia_mg_l, nitrite_mg_l, kh_mg_l, overall, evaluation)
       select gen_random_uuid(), f.company_id, f.id, 'technician', ($2::date - (k * 7) * interval '1 day') + time '15:00',
              round((14 + 10 * sin(k * 2 * pi() / 52) + random() * 2)::numeric, 1), round((7.0 + random() * 1.4)::numeric, 2), round((random() * 0.4)::numeric, 2),
@@ -129,6 +152,54 @@ async function main() {
   finally {
     await c.end()
   }
+}
+
+/**
+ * The current season's visits, one per window of each template (windowVisitDates, as contract
+ * activation makes them) with the same generation keys; each customer's visits with one
+ * technician by hash (the book before planning), past ones done.
+ */
+async function currentSeasonVisits(c: pg.Client, companyId: string, seasonStart: string, today: string, technicianIds: string[], log: (m: string) => void) {
+  const { rows: [company] } = await c.query(`select working_days from companies where id = $1`, [companyId])
+  const closed = new Set((await c.query(`select day::text as day from closed_days where company_id = $1`, [companyId])).rows.map(r => r.day as string))
+  const { rows: templates } = await c.query(`select id, plan_id as "planId", position, visit_type as "visitType", rrule, season_from as "seasonFrom", season_to as "seasonTo", tolerance_days as "toleranceDays", duration_minutes as "durationMinutes"
+    from plan_visit_templates t where plan_id in (select id from plans where company_id = $1)`, [companyId])
+  const { rows: list } = await c.query(`select ct.id, ct.customer_id, ct.plan_id, ct.term_start::text as term_start, ct.term_end::text as term_end, s.id as site_id
+    from contracts ct join sites s on s.customer_id = ct.customer_id where ct.company_id = $1 and ct.term_start = $2::date`, [companyId, seasonStart])
+  const windows = new Map<string, ReturnType<typeof windowVisitDates>>()
+  const templateOf = new Map(templates.map(t => [t.id as string, t]))
+  const cols = { contract: [] as string[], customer: [] as string[], site: [] as string[], template: [] as string[], type: [] as string[], status: [] as string[], day: [] as string[], minutes: [] as number[], tech: [] as string[], key: [] as string[] }
+  const flush = async () => {
+    if (!cols.contract.length) return
+    await c.query(`insert into visits (company_id, contract_id, customer_id, site_id, template_id, visit_type, status, scheduled_on, starts_at, duration_minutes, technician_id, generation_key, finished_at)
+      select $1, x.contract, x.customer, x.site, x.template, x.type::visit_type, x.status::visit_status, x.day, (x.day + time '14:00') at time zone 'UTC', x.minutes, x.tech, x.key,
+             case when x.status = 'done' then (x.day + time '15:00') at time zone 'UTC' end
+      from unnest($2::uuid[], $3::uuid[], $4::uuid[], $5::uuid[], $6::text[], $7::text[], $8::date[], $9::int[], $10::uuid[], $11::text[]) x(contract, customer, site, template, type, status, day, minutes, tech, key)`,
+    [companyId, cols.contract, cols.customer, cols.site, cols.template, cols.type, cols.status, cols.day, cols.minutes, cols.tech, cols.key])
+    for (const k of Object.keys(cols) as Array<keyof typeof cols>) cols[k].length = 0
+  }
+  let n = 0
+  for (const ct of list) {
+    const wkey = `${ct.plan_id}|${ct.term_start}|${ct.term_end}`
+    if (!windows.has(wkey)) windows.set(wkey, windowVisitDates(templates.filter(t => t.planId === ct.plan_id) as Parameters<typeof windowVisitDates>[0], { start: ct.term_start, end: ct.term_end }, { workingDays: company.working_days, closed }))
+    const tech = technicianIds[Math.abs(hashOf(ct.customer_id)) % technicianIds.length]!
+    for (const w of windows.get(wkey)!) {
+      cols.contract.push(ct.id); cols.customer.push(ct.customer_id); cols.site.push(ct.site_id); cols.template.push(w.templateId)
+      cols.type.push(templateOf.get(w.templateId)!.visitType); cols.status.push(w.date < today ? 'done' : 'scheduled'); cols.day.push(w.date)
+      cols.minutes.push(templateOf.get(w.templateId)!.durationMinutes); cols.tech.push(tech); cols.key.push(`${w.key}:${ct.site_id}`)
+      n++
+      if (cols.contract.length >= 20_000) await flush()
+    }
+  }
+  await flush()
+  log(`visits (current season, from the plans' windows): ${n} rows`)
+}
+
+/** A small string hash (FNV-1a), for spreading customers over technicians the same way every run. */
+function hashOf(text: string) {
+  let h = 0x811C9DC5
+  for (let i = 0; i < text.length; i++) h = Math.imul(h ^ text.charCodeAt(i), 16777619)
+  return h | 0
 }
 
 main().catch((err) => {

@@ -33,7 +33,26 @@ export interface DemoFeature {
   installedOn: string
 }
 
-const STREETS = ['Alder Row', 'Bittern Lane', 'Cressway', 'Damselfly Court', 'Eelgrass Road', 'Fenwick Street', 'Goldcrest Avenue', 'Hornbeam Close', 'Iris Walk', 'Juniper Rise', 'Kingfisher Way', 'Lily Mead']
+/**
+ * The invented town's neighbourhoods: a centre, a radius in km and their streets. Each site lies
+ * in one, so a technician's day can stay in one part of town (the planner clusters by area).
+ */
+const AREAS = [
+  { name: 'Old Town', lat: 44.141, lon: -91.352, km: 1.0, postcode: '54100', streets: ['Fenwick Street', 'Cressway', 'Iris Walk'] },
+  { name: 'Millbrook', lat: 44.166, lon: -91.322, km: 1.2, postcode: '54111', streets: ['Kingfisher Way', 'Lily Mead', 'Millbrook Commons'] },
+  { name: 'Fern Hollow', lat: 44.116, lon: -91.381, km: 1.2, postcode: '54122', streets: ['Hornbeam Close', 'Juniper Rise', 'Fern Hollow Drive'] },
+  { name: 'Ashgrove', lat: 44.172, lon: -91.379, km: 1.1, postcode: '54133', streets: ['Alder Row', 'Goldcrest Avenue', 'Ashgrove Lane'] },
+  { name: 'Heron Flats', lat: 44.119, lon: -91.318, km: 1.1, postcode: '54144', streets: ['Bittern Lane', 'Damselfly Court', 'Eelgrass Road'] },
+] as const
+
+/** The neighbourhood of a customer: the named places where they are, households round the town. */
+function areaOf(customerKey: string, i: number) {
+  const fixed: Record<string, string> = {
+    'customer-ashgrove': 'Ashgrove', 'customer-millbrook-hoa': 'Millbrook', 'customer-fernhollow-hoa': 'Fern Hollow',
+    'customer-lantern-court': 'Old Town', 'customer-larchfield-library': 'Old Town', 'customer-copperleaf': 'Old Town',
+  }
+  return AREAS.find(a => a.name === fixed[customerKey]) ?? AREAS[i % AREAS.length]!
+}
 
 /** A small deterministic generator so re-seeding yields the same data. */
 function seq(seed: number) {
@@ -53,17 +72,25 @@ export function demoSitesAndFeatures(customerKeys: string[]) {
   const sites: DemoSite[] = []
   const features: DemoFeature[] = []
   const rnd = seq(20260401)
-  const at = (i: number) => ({ latitude: 44.1 + ((i * 37) % 90) / 1000, longitude: -91.4 + ((i * 53) % 110) / 1000 })
+  const spot = seq(20260402)
+  /** A point within the area's radius (km → degrees at this latitude: 111 km a degree of latitude). */
+  const at = (area: (typeof AREAS)[number]) => {
+    const r = area.km * Math.sqrt(spot())
+    const a = 2 * Math.PI * spot()
+    const round = (x: number) => Math.round(x * 100_000) / 100_000
+    return { latitude: round(area.lat + (r * Math.sin(a)) / 111), longitude: round(area.lon + (r * Math.cos(a)) / (111 * Math.cos((area.lat * Math.PI) / 180))) }
+  }
 
   customerKeys.forEach((ck, i) => {
     const siteKey = `site-${ck}`
-    const street = STREETS[i % STREETS.length]!
+    const area = areaOf(ck, i)
+    const street = area.streets[Math.floor(i / AREAS.length) % area.streets.length]!
     const number = 12 + ((i * 17) % 480)
     const dogs = i % 5 === 1
     sites.push({
       key: siteKey, customerKey: ck, name: ck.includes('ashgrove') ? 'Garden grounds' : ck.includes('lantern') ? 'Courtyard' : ck.includes('hoa') ? 'Entrance commons' : 'Home',
-      line1: `${number} ${street}`, city: 'Larchfield', postcode: `5${String(4100 + (i % 9) * 11)}`,
-      ...at(i), altitudeM: 240 + (i % 7) * 12,
+      line1: `${number} ${street}`, city: 'Larchfield', postcode: area.postcode,
+      ...at(area), altitudeM: 240 + (i % 7) * 12,
       accessNotes: i % 3 === 0 ? 'Side gate on the left of the garage; park on the street.' : 'Ring the bell; the path round the back is uneven.',
       gateCode: i % 2 === 0 ? `${1000 + ((i * 7919) % 9000)}#` : '',
       hazards: [...(dogs ? ['dogs'] : []), ...(i % 4 === 0 ? ['deep_water'] : []), ...(i % 9 === 2 ? ['overhead_lines'] : [])],

@@ -15,28 +15,30 @@ const CHECK = {
   waterTest: ['Water tested', 'De-icer or aerator running', 'Fish observed'],
 }
 
+// The winter test's windows (every 5 weeks, give or take 17 days) join up from December to
+// March, so there is winter work on any day of it.
 export const demoPlans: DemoPlan[] = [
   {
     key: 'plan-seasonal', name: 'Seasonal Care', priceMinor: 145_000, billingCadence: 'yearly', termMonths: 12,
-    description: 'Spring clean-out, a visit every two weeks from May to September, leaf net on in October with weekly clean-outs, and the fall shutdown.',
+    description: 'Spring clean-out, a visit every two weeks from May to September, leaf net on in October with a clean-out every two weeks, and the fall shutdown.',
     templates: [
       { visitType: 'spring_cleanout', rrule: 'FREQ=YEARLY', from: '04-01', to: '04-30', toleranceDays: 0, durationMinutes: 240, checklist: CHECK.spring },
       { visitType: 'routine', rrule: 'FREQ=WEEKLY;INTERVAL=2', from: '05-01', to: '09-30', toleranceDays: 3, durationMinutes: 60, checklist: CHECK.routine },
       { visitType: 'net_install', rrule: 'FREQ=YEARLY', from: '10-01', to: '10-15', toleranceDays: 0, durationMinutes: 90, checklist: CHECK.netInstall },
-      { visitType: 'net_cleanout', rrule: 'FREQ=WEEKLY', from: '10-16', to: '11-15', toleranceDays: 2, durationMinutes: 45, checklist: CHECK.netCleanout },
+      { visitType: 'net_cleanout', rrule: 'FREQ=WEEKLY;INTERVAL=2', from: '10-16', to: '11-15', toleranceDays: 4, durationMinutes: 45, checklist: CHECK.netCleanout },
       { visitType: 'fall_shutdown', rrule: 'FREQ=YEARLY', from: '11-10', to: '11-30', toleranceDays: 0, durationMinutes: 120, checklist: CHECK.shutdown },
     ],
   },
   {
     key: 'plan-koi-year', name: 'Koi Keeper, all year', priceMinor: 18_900, billingCadence: 'monthly', termMonths: 12,
-    description: 'For fish ponds: weekly summer visits, leaf-net season, and a monthly winter water test with the de-icer checked.',
+    description: 'For fish ponds: weekly summer visits, leaf-net season, and a winter water test every five weeks or so with the de-icer checked.',
     templates: [
       { visitType: 'spring_cleanout', rrule: 'FREQ=YEARLY', from: '04-01', to: '04-20', toleranceDays: 0, durationMinutes: 300, checklist: CHECK.spring },
       { visitType: 'routine', rrule: 'FREQ=WEEKLY', from: '05-01', to: '09-30', toleranceDays: 2, durationMinutes: 60, checklist: CHECK.routine },
       { visitType: 'net_install', rrule: 'FREQ=YEARLY', from: '10-01', to: '10-15', toleranceDays: 0, durationMinutes: 90, checklist: CHECK.netInstall },
       { visitType: 'net_cleanout', rrule: 'FREQ=WEEKLY', from: '10-16', to: '11-15', toleranceDays: 2, durationMinutes: 45, checklist: CHECK.netCleanout },
       { visitType: 'fall_shutdown', rrule: 'FREQ=YEARLY', from: '11-10', to: '11-30', toleranceDays: 0, durationMinutes: 150, checklist: CHECK.shutdown },
-      { visitType: 'water_test', rrule: 'FREQ=MONTHLY', from: '12-01', to: '03-31', toleranceDays: 7, durationMinutes: 30, checklist: CHECK.waterTest },
+      { visitType: 'water_test', rrule: 'FREQ=WEEKLY;INTERVAL=5', from: '12-01', to: '03-31', toleranceDays: 17, durationMinutes: 30, checklist: CHECK.waterTest },
     ],
   },
   {

@@ -1,5 +1,6 @@
 // Demo plans, two seasons of contracts and their visits, relative to today so the demo always has
-// a finished season, a current one with visits done, today's stops and upcoming visits.
+// a finished season, a current one with visits done, today's stops and upcoming visits. The
+// season planner chooses every visit's day and technician (demo-planning.ts).
 import { and, eq, lt } from 'drizzle-orm'
 import { closedDays, companies, contractFeatures, contracts, plans, planVisitTemplates, products, staffProfiles, visits } from '../../server/db/schema'
 import { cancelFutureVisits, regenerateContractVisits } from '../../server/services/visit-generation'
@@ -7,6 +8,7 @@ import type { Tx } from '../../server/utils/db'
 import { addDays, localToday, termEndFor } from '../../shared/utils/recurrence'
 import { demoClosedMonthDays, demoPlans } from './demo-plans'
 import { demoProducts } from './demo-products'
+import { planDemoSeason } from './demo-planning'
 
 interface FeatureRef { id: string, kind: string, customerKey: string }
 
@@ -55,20 +57,22 @@ export async function seedSchedule(tx: Tx, companyId: string, demoId: (key: stri
   // Which plan each customer is on, from what they have.
   const byCustomer = new Map<string, FeatureRef[]>()
   for (const f of features) byCustomer.set(f.customerKey, [...(byCustomer.get(f.customerKey) ?? []), f])
-  const agreements: Array<{ customerKey: string, planKey: string, featureIds: string[], tech: string, index: number }> = []
+  const agreements: Array<{ customerKey: string, planKey: string, featureIds: string[], index: number }> = []
   customerKeys.forEach((ck, index) => {
     const fs = byCustomer.get(ck) ?? []
-    const tech = ck === 'customer-whitcombe' || index % 2 === 0 ? tess : dario
     const water = fs.filter(f => !['pondless_waterfall', 'fountain'].includes(f.kind))
     const dry = fs.filter(f => ['pondless_waterfall', 'fountain'].includes(f.kind))
     if (water.length) {
       const koi = water.some(f => f.kind === 'koi_pond')
       const planKey = koi && (ck === 'customer-whitcombe' || ck === 'customer-lantern-court' || index % 3 !== 2) ? 'plan-koi-year' : index % 5 === 4 ? 'plan-spring-fall' : 'plan-seasonal'
-      agreements.push({ customerKey: ck, planKey, featureIds: water.map(f => f.id), tech, index })
+      agreements.push({ customerKey: ck, planKey, featureIds: water.map(f => f.id), index })
     }
-    if (dry.length) agreements.push({ customerKey: ck, planKey: 'plan-pondless', featureIds: dry.map(f => f.id), tech, index })
+    if (dry.length) agreements.push({ customerKey: ck, planKey: 'plan-pondless', featureIds: dry.map(f => f.id), index })
   })
 
+  /** Contracts of each season this run created, and the agreement each belongs to. */
+  const seasonContracts: { previous: string[], current: string[] } = { previous: [], current: [] }
+  const agreementOf = new Map<string, (typeof agreements)[number]>()
   for (const a of agreements) {
     const customerId = demoId(a.customerKey)
     const plan = demoPlans.find(p => p.key === a.planKey)!
@@ -84,6 +88,8 @@ export async function seedSchedule(tx: Tx, companyId: string, demoId: (key: stri
     if (!previous.length) continue
     added++
     created.push(prevId, ...(churned ? [] : [currId]))
+    seasonContracts.previous.push(prevId)
+    agreementOf.set(prevId, a)
     await tx.insert(contractFeatures).values(a.featureIds.map((featureId, position) => ({ contractId: prevId, featureId, position })))
     await regenerateContractVisits(tx, prevId, { now: new Date(`${addDays(previousStart, -7)}T12:00:00Z`) })
     if (!churned) {
@@ -95,21 +101,30 @@ export async function seedSchedule(tx: Tx, companyId: string, demoId: (key: stri
       await tx.insert(contractFeatures).values(a.featureIds.map((featureId, position) => ({ contractId: currId, featureId, position })))
       await regenerateContractVisits(tx, currId, { now: new Date(`${addDays(currentStart, -7)}T12:00:00Z`) })
       if (paused) await cancelFutureVisits(tx, currId, 'Contract paused', { now: new Date(`${addDays(today, -40)}T12:00:00Z`) })
+      seasonContracts.current.push(currId)
+      agreementOf.set(currId, a)
     }
-    // The technician for all of this customer's visits; past ones done (a few skipped).
-    for (const contractId of churned ? [prevId] : [prevId, currId]) {
-      await tx.update(visits).set({ technicianId: a.tech, unplacedReason: null }).where(eq(visits.contractId, contractId))
-      const past = await tx.select({ id: visits.id, startsAt: visits.startsAt, durationMinutes: visits.durationMinutes, status: visits.status })
-        .from(visits).where(and(eq(visits.contractId, contractId), lt(visits.scheduledOn, today)))
-      for (const [i, v] of past.entries()) {
-        if (v.status !== 'scheduled') continue
-        const skipped = (i + a.index) % 17 === 5
-        const startedAt = new Date(v.startsAt.getTime() + ((i * 37 + a.index * 53) % 300) * 60_000)
-        await tx.update(visits).set(skipped
-          ? { status: 'skipped', statusReason: 'Gate locked; customer away' }
-          : { status: 'done', startedAt, finishedAt: new Date(startedAt.getTime() + (v.durationMinutes + ((i % 5) - 2) * 5) * 60_000) })
-          .where(eq(visits.id, v.id))
-      }
+  }
+
+  // The whole book planned by the season planner, one season at a time; a customer keeps last
+  // season's technician where the planner can.
+  const planning = { ...company!, id: companyId }
+  const previousSeason = await planDemoSeason(tx, planning, seasonContracts.previous, today)
+  await planDemoSeason(tx, planning, seasonContracts.current, today, previousSeason.assignments)
+
+  // Past visits done (a few skipped).
+  for (const contractId of [...seasonContracts.previous, ...seasonContracts.current]) {
+    const a = agreementOf.get(contractId)!
+    const past = await tx.select({ id: visits.id, startsAt: visits.startsAt, durationMinutes: visits.durationMinutes, status: visits.status, technicianId: visits.technicianId })
+      .from(visits).where(and(eq(visits.contractId, contractId), lt(visits.scheduledOn, today)))
+    for (const [i, v] of past.entries()) {
+      if (v.status !== 'scheduled' || !v.technicianId) continue
+      const skipped = (i + a.index) % 17 === 5
+      const startedAt = new Date(v.startsAt.getTime() + ((i * 37 + a.index * 53) % 300) * 60_000)
+      await tx.update(visits).set(skipped
+        ? { status: 'skipped', statusReason: 'Gate locked; customer away' }
+        : { status: 'done', startedAt, finishedAt: new Date(startedAt.getTime() + (v.durationMinutes + ((i % 5) - 2) * 5) * 60_000) })
+        .where(eq(visits.id, v.id))
     }
   }
 
