@@ -1,6 +1,7 @@
 import { and, asc, count, eq, gte, inArray, isNull, lte, ne, sql, type SQL } from 'drizzle-orm'
-import type { VisitUpdateInput } from '../../shared/schemas/visits'
+import type { StaffProfileInput, VisitUpdateInput } from '../../shared/schemas/visits'
 import type { VisitType } from '../../shared/types/schedule'
+import { dayLoad, type DayLoad, type DayLoadStop } from '../../shared/utils/day-load'
 import { localTimeToInstant, localToday } from '../../shared/utils/recurrence'
 import { companies, contractFeatures, customers, sites, staffProfiles, users, visits, waterFeatures } from '../db/schema'
 import { ownCustomerId, type SessionUser } from '../utils/auth'
@@ -16,12 +17,14 @@ export async function listTechnicians(actor: SessionUser) {
     id: users.id, name: users.name, role: users.role,
     capacityMinutes: sql<number>`coalesce(${staffProfiles.capacityMinutes}, ${DEFAULT_CAPACITY_MINUTES})`,
     homeLatitude: staffProfiles.homeLatitude, homeLongitude: staffProfiles.homeLongitude,
+    /** Their own working weekdays; null: the company's. */
+    workingDays: staffProfiles.workingDays,
   }).from(users).leftJoin(staffProfiles, eq(staffProfiles.userId, users.id))
     .where(and(eq(users.companyId, actor.companyId), eq(users.role, 'technician'), eq(users.active, true)))
     .orderBy(asc(users.name)).limit(100)
 }
 
-export async function updateStaffProfile(actor: SessionUser, userId: string, input: { capacityMinutes?: number, homeLatitude?: number | null, homeLongitude?: number | null }, ip: string) {
+export async function updateStaffProfile(actor: SessionUser, userId: string, input: StaffProfileInput, ip: string) {
   const db = useDb()
   const [u] = await db.select({ id: users.id }).from(users).where(and(eq(users.id, userId), eq(users.companyId, actor.companyId), ne(users.role, 'customer'))).limit(1)
   if (!u) throw httpError(404, 'No such staff member')
@@ -41,7 +44,7 @@ const visitColumns = {
   siteLatitude: sites.latitude, siteLongitude: sites.longitude,
 }
 
-/** Visits between two dates for the week and month boards, with each technician's load per day. */
+/** Visits between two dates for the week and month boards, with each technician's load per day (driving included). */
 export async function board(actor: SessionUser, q: { from: string, to: string, technicianId?: string, visitType?: VisitType, includeCancelled: boolean }) {
   const db = useDb()
   const where: SQL[] = [eq(visits.companyId, actor.companyId), gte(visits.scheduledOn, q.from), lte(visits.scheduledOn, q.to)]
@@ -56,14 +59,23 @@ export async function board(actor: SessionUser, q: { from: string, to: string, t
       .where(and(...where)).orderBy(asc(visits.scheduledOn), asc(customers.name)).limit(2000),
     listTechnicians(actor),
   ])
-  const capacity = new Map(technicians.map(t => [t.id, t.capacityMinutes]))
-  const load: Record<string, Record<string, { minutes: number, capacity: number, over: boolean }>> = {}
+  // Each technician-day: visit time plus driving between its stops (shared/utils/day-load, the
+  // numbers the board shows), against the technician's capacity. Cancelled and skipped visits take no time.
+  const stopsOf = new Map<string, Map<string, DayLoadStop[]>>()
   for (const v of rows) {
-    if (!v.technicianId || v.status === 'cancelled') continue
-    const day = (load[v.scheduledOn] ??= {})
-    const entry = (day[v.technicianId] ??= { minutes: 0, capacity: capacity.get(v.technicianId) ?? DEFAULT_CAPACITY_MINUTES, over: false })
-    entry.minutes += v.durationMinutes
-    entry.over = entry.minutes > entry.capacity
+    if (!v.technicianId || v.status === 'cancelled' || v.status === 'skipped') continue
+    const day = stopsOf.get(v.scheduledOn) ?? new Map<string, DayLoadStop[]>()
+    stopsOf.set(v.scheduledOn, day.set(v.technicianId, [...(day.get(v.technicianId) ?? []), { id: v.id, durationMinutes: v.durationMinutes, lat: v.siteLatitude, lon: v.siteLongitude }]))
+  }
+  const techById = new Map(technicians.map(t => [t.id, t]))
+  const load: Record<string, Record<string, DayLoad>> = {}
+  for (const [day, perTech] of stopsOf) {
+    load[day] = {}
+    for (const [tid, stops] of perTech) {
+      const t = techById.get(tid)
+      const home = t?.homeLatitude != null && t.homeLongitude != null ? { lat: t.homeLatitude, lon: t.homeLongitude } : null
+      load[day][tid] = dayLoad(stops, home, t?.capacityMinutes ?? DEFAULT_CAPACITY_MINUTES)
+    }
   }
   return { from: q.from, to: q.to, visits: rows, technicians, load, unassigned: rows.filter(v => !v.technicianId && v.status === 'scheduled').length }
 }
