@@ -2,12 +2,14 @@ import { and, asc, count, eq, gte, inArray, isNull, lte, ne, sql, type SQL } fro
 import type { StaffProfileInput, VisitUpdateInput } from '../../shared/schemas/visits'
 import type { VisitType } from '../../shared/types/schedule'
 import { dayLoad, type DayLoad, type DayLoadStop } from '../../shared/utils/day-load'
+import { addDays, formatLocalDate } from '../../shared/utils/company-time'
 import { localTimeToInstant, localToday } from '../../shared/utils/recurrence'
 import { companies, contractFeatures, customers, sites, staffProfiles, users, visits, waterFeatures } from '../db/schema'
 import { ownCustomerId, type SessionUser } from '../utils/auth'
 import { useDb } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { recordAudit } from './audit'
+import { releasedWords, takeTechnicianOff } from './technician-days'
 
 const DEFAULT_CAPACITY_MINUTES = 420
 
@@ -24,15 +26,34 @@ export async function listTechnicians(actor: SessionUser) {
     .orderBy(asc(users.name)).limit(100)
 }
 
+/**
+ * Changes a staff member's capacity, home base or own working weekdays. Narrower working days take
+ * them off their scheduled visits from today on the weekdays they no longer work (each with the
+ * reason, listed in the answer as `unassignedVisits`), as a day off does.
+ */
 export async function updateStaffProfile(actor: SessionUser, userId: string, input: StaffProfileInput, ip: string) {
   const db = useDb()
-  const [u] = await db.select({ id: users.id }).from(users).where(and(eq(users.id, userId), eq(users.companyId, actor.companyId), ne(users.role, 'customer'))).limit(1)
+  const [u] = await db.select({ id: users.id, name: users.name }).from(users).where(and(eq(users.id, userId), eq(users.companyId, actor.companyId), ne(users.role, 'customer'))).limit(1)
   if (!u) throw httpError(404, 'No such staff member')
-  await db.transaction(async (tx) => {
+  const released = await db.transaction(async (tx) => {
     await tx.insert(staffProfiles).values({ userId, ...input }).onConflictDoUpdate({ target: staffProfiles.userId, set: input })
-    await recordAudit(tx, { action: 'staff.profile_changed', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'user', subjectId: userId, ip, detail: input })
+    let off: Awaited<ReturnType<typeof takeTechnicianOff>> = []
+    if (input.workingDays !== undefined) {
+      const [company] = await tx.select({ workingDays: companies.workingDays, tz: companies.timeZone }).from(companies).where(eq(companies.id, actor.companyId)).limit(1)
+      const works = input.workingDays ?? company!.workingDays
+      const notWorked = [1, 2, 3, 4, 5, 6, 7].filter(d => !works.includes(d))
+      if (notWorked.length) {
+        const names = notWorked.map(d => formatLocalDate(addDays('2024-01-01', d - 1), 'longWeekday')).join(', ')
+        off = await takeTechnicianOff(tx, actor.companyId, userId,
+          and(gte(visits.scheduledOn, localToday(company!.tz)), sql`extract(isodow from ${visits.scheduledOn})::int in (${sql.join(notWorked.map(d => sql`${d}`), sql`, `)})`)!,
+          `${u.name} does not work on ${names}: assign someone else or plan these weeks again`)
+      }
+    }
+    await recordAudit(tx, { action: 'staff.profile_changed', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'user', subjectId: userId, ip, detail: { ...input, visitsUnassigned: off.length } })
+    return off
   })
-  return (await listTechnicians(actor)).find(t => t.id === userId) ?? { id: userId, ...input }
+  const row = (await listTechnicians(actor)).find(t => t.id === userId) ?? { id: userId, ...input }
+  return { ...row, unassignedVisits: released, ...(released.length && { message: releasedWords(u.name, released.length) }) }
 }
 
 const visitColumns = {

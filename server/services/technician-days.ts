@@ -2,7 +2,7 @@
 // Adding a day off over days that already hold that technician's scheduled visits takes the
 // technician off those visits, each with an unplaced reason, and answers with the list: they show
 // in the board's tray and "plan these weeks again" places them with someone who is working.
-import { and, asc, eq, gte, inArray, lte, sql } from 'drizzle-orm'
+import { and, asc, eq, gte, inArray, lte, sql, type SQL } from 'drizzle-orm'
 import type { DayOffInput } from '../../shared/schemas/technician-days'
 import { addDays, formatLocalDate } from '../../shared/utils/company-time'
 import type { LocalDate } from '../../shared/utils/recurrence'
@@ -44,28 +44,37 @@ export async function addDayOff(actor: SessionUser, userId: string, input: DayOf
     const [dayOff] = await tx.insert(technicianDaysOff)
       .values({ companyId: actor.companyId, userId, fromDay: input.from, toDay: to, reason: input.reason })
       .returning(dayOffColumns)
-    const affected = await tx.select({ id: visits.id, scheduledOn: visits.scheduledOn, customerName: customers.name })
-      .from(visits).innerJoin(customers, eq(customers.id, visits.customerId))
-      .where(and(eq(visits.companyId, actor.companyId), eq(visits.technicianId, userId), eq(visits.status, 'scheduled'),
-        gte(visits.scheduledOn, input.from), lte(visits.scheduledOn, to)))
-      .orderBy(asc(visits.scheduledOn), asc(customers.name))
-    const unplacedReason = `${tech.name} is off (${input.reason}) on ${spanWords(input.from, to)}: assign someone else or plan these weeks again`
-    if (affected.length) {
-      await tx.update(visits).set({ technicianId: null, unplacedReason, sequence: sql`${visits.sequence} + 1` })
-        .where(and(eq(visits.companyId, actor.companyId), inArray(visits.id, affected.map(v => v.id))))
-    }
+    const affected = await takeTechnicianOff(tx, actor.companyId, userId, and(gte(visits.scheduledOn, input.from), lte(visits.scheduledOn, to))!,
+      `${tech.name} is off (${input.reason}) on ${spanWords(input.from, to)}: assign someone else or plan these weeks again`)
     await recordAudit(tx, {
       action: 'staff.day_off_added', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'user', subjectId: userId, ip,
       detail: { from: input.from, to, reason: input.reason, visitsUnassigned: affected.length },
     })
-    return {
-      dayOff: dayOff!,
-      unassignedVisits: affected,
-      message: affected.length
-        ? `${affected.length} ${affected.length === 1 ? 'visit was' : 'visits were'} on those days: ${tech.name} is off them now and they wait with the visits still to place.`
-        : `No visits of ${tech.name} on those days.`,
-    }
+    return { dayOff: dayOff!, unassignedVisits: affected, message: releasedWords(tech.name, affected.length) }
   })
+}
+
+/** What the answer says about the visits a change took the technician off. */
+export function releasedWords(name: string, n: number) {
+  return n
+    ? `${n} ${n === 1 ? 'visit was' : 'visits were'} on those days: ${name} is off them now and they wait with the visits still to place.`
+    : `No visits of ${name} on those days.`
+}
+
+/**
+ * Takes the technician off their scheduled visits that `when` picks, each with the reason (shown
+ * with the visits still to place), and lists them.
+ */
+export async function takeTechnicianOff(tx: Tx, companyId: string, userId: string, when: SQL, unplacedReason: string) {
+  const affected = await tx.select({ id: visits.id, scheduledOn: visits.scheduledOn, customerName: customers.name })
+    .from(visits).innerJoin(customers, eq(customers.id, visits.customerId))
+    .where(and(eq(visits.companyId, companyId), eq(visits.technicianId, userId), eq(visits.status, 'scheduled'), when))
+    .orderBy(asc(visits.scheduledOn), asc(customers.name))
+  if (affected.length) {
+    await tx.update(visits).set({ technicianId: null, unplacedReason, sequence: sql`${visits.sequence} + 1` })
+      .where(and(eq(visits.companyId, companyId), inArray(visits.id, affected.map(v => v.id))))
+  }
+  return affected
 }
 
 /** Removes a day off. Visits taken off the technician stay in the tray: the owner places them again. */

@@ -9,6 +9,8 @@ let owner: string
 let pool: pg.Pool
 let year: number
 let tessId: string
+/** A technician made for this file, so that their working days touch no demo visit. */
+let wrenId: string
 let others: string[]
 const daysOff: Array<{ tech: string, id: string }> = []
 
@@ -58,23 +60,27 @@ beforeAll(async () => {
   pool = new pg.Pool({ connectionString: inject('databaseUrl'), max: 2 })
   const today = (await api('/api/today', { token: owner })).body.date as string
   year = Number(today.slice(0, 4)) + 3
+  const wren = await api('/api/users', { method: 'POST', token: owner, body: { email: `wren-${Date.now()}@heronmere.example`, name: 'Wren Days-Test', role: 'technician', password: 'wren-long-enough-pw' } })
+  expect(wren.status, JSON.stringify(wren.body)).toBe(201)
+  wrenId = wren.body.id
   const techs = (await api('/api/technicians', { token: owner })).body.rows as Array<{ id: string, name: string }>
   tessId = techs.find(t => t.name === 'Tess Okafor')!.id
-  others = techs.filter(t => t.id !== tessId).map(t => t.id)
+  others = techs.filter(t => t.id !== wrenId).map(t => t.id)
+  // Everyone but Wren is on holiday for all of April of that year.
+  for (const t of others) await dayOff(t, { from: `${year}-04-01`, to: `${year}-04-30`, reason: 'Holiday' })
 })
 afterAll(async () => {
   for (const d of daysOff) await api(`/api/technicians/${d.tech}/days-off/${d.id}`, { method: 'DELETE', token: owner })
-  if (tessId) await api(`/api/technicians/${tessId}`, { method: 'PATCH', token: owner, body: { workingDays: null } })
+  if (wrenId) await api(`/api/users/${wrenId}`, { method: 'PATCH', token: owner, body: { active: false } })
   await pool.end()
 })
 
 describe('technicians\' working days and days off', () => {
   it('hold through activation and "plan these weeks again"; a day off over visits takes the technician off them and lists them', async () => {
-    // Tess works Monday to Wednesday; everyone else is on holiday for all of April.
-    const patched = await api(`/api/technicians/${tessId}`, { method: 'PATCH', token: owner, body: { workingDays: [3, 1, 2, 2] } })
+    // Wren works Monday to Wednesday; everyone else is on holiday for all of April.
+    const patched = await api(`/api/technicians/${wrenId}`, { method: 'PATCH', token: owner, body: { workingDays: [3, 1, 2, 2] } })
     expect(patched.status, JSON.stringify(patched.body)).toBe(200)
     expect(patched.body.workingDays).toEqual([1, 2, 3])
-    for (const t of others) await dayOff(t, { from: `${year}-04-01`, to: `${year}-04-30`, reason: 'Holiday' })
     const listed = await api(`/api/technicians/${others[0]}/days-off`, { token: owner })
     expect(listed.body.rows).toContainEqual(expect.objectContaining({ from: `${year}-04-01`, to: `${year}-04-30`, reason: 'Holiday' }))
 
@@ -89,8 +95,8 @@ describe('technicians\' working days and days off', () => {
           expect((v.unplaced_reason ?? '').length, v.id).toBeGreaterThan(10)
           continue
         }
-        expect(v.technician_id, `${v.day}: only Tess works in April`).toBe(tessId)
-        expect([1, 2, 3], `${v.day} is not one of Tess's working days`).toContain(weekday(v.day))
+        expect(v.technician_id, `${v.day}: only Wren works in April`).toBe(wrenId)
+        expect([1, 2, 3], `${v.day} is not one of Wren's working days`).toContain(weekday(v.day))
       }
       return rows
     }
@@ -102,26 +108,44 @@ describe('technicians\' working days and days off', () => {
     expect(p.status, JSON.stringify(p.body)).toBe(200)
     for (const m of p.body.moves as Array<{ to: { day: string, technicianId: string } | null }>) {
       if (!m.to) continue
-      expect(m.to.technicianId).toBe(tessId)
+      expect(m.to.technicianId).toBe(wrenId)
       expect([1, 2, 3]).toContain(weekday(m.to.day))
     }
     const a = await api('/api/schedule/replan', { method: 'POST', token: owner, body: { ...range, apply: true, token: p.body.token } })
     expect(a.status, JSON.stringify(a.body)).toBe(200)
     const after = await check()
 
-    // Tess takes a training day on a day that holds her visits: they lose her, with the reason, and are listed.
-    const busy = after.find(v => v.technician_id === tessId)!
-    const onThatDay = after.filter(v => v.technician_id === tessId && v.day === busy.day).map(v => v.id).sort()
-    const { unassignedVisits, message } = await dayOff(tessId, { from: busy.day, reason: 'Training' })
+    // Wren takes a training day on a day that holds their visits: they lose Wren, with the reason, and are listed.
+    const busy = after.find(v => v.technician_id === wrenId)!
+    const onThatDay = after.filter(v => v.technician_id === wrenId && v.day === busy.day).map(v => v.id).sort()
+    const { unassignedVisits, message } = await dayOff(wrenId, { from: busy.day, reason: 'Training' })
     expect(unassignedVisits.map((v: { id: string }) => v.id).sort()).toEqual(expect.arrayContaining(onThatDay))
     expect(message).toContain(`${unassignedVisits.length} visit`)
     const now = (await pool.query(`select technician_id, unplaced_reason from visits where id = any($1::uuid[])`, [onThatDay])).rows
     for (const v of now) {
       expect(v.technician_id).toBeNull()
-      expect(v.unplaced_reason).toMatch(/Tess Okafor is off \(Training\)/)
+      expect(v.unplaced_reason).toMatch(/Wren Days-Test is off \(Training\)/)
     }
     const again = await api('/api/schedule/replan', { method: 'POST', token: owner, body: range })
     for (const m of again.body.moves as Array<{ to: { day: string } | null }>) if (m.to) expect(m.to.day).not.toBe(busy.day)
+
+    // Wren stops working on one of the weekdays that holds their visits: those visits lose them, with the reason, and are listed.
+    const mine = (await pool.query(`select id, extract(isodow from scheduled_on)::int as wd from visits where technician_id = $1 and status = 'scheduled'`, [wrenId])).rows as Array<{ id: string, wd: number }>
+    expect(mine.length).toBeGreaterThan(0)
+    const dropped = mine[0]!.wd
+    const keptDays = [1, 2, 3].filter(d => d !== dropped)
+    const onDropped = mine.filter(v => v.wd === dropped).map(v => v.id).sort()
+    const narrower = await api(`/api/technicians/${wrenId}`, { method: 'PATCH', token: owner, body: { workingDays: keptDays } })
+    expect(narrower.status, JSON.stringify(narrower.body)).toBe(200)
+    expect(narrower.body.unassignedVisits.map((v: { id: string }) => v.id).sort()).toEqual(onDropped)
+    expect(narrower.body.message).toContain(`${onDropped.length} visit`)
+    const dayName = ['Monday', 'Tuesday', 'Wednesday'][dropped - 1]!
+    const left = (await pool.query(`select technician_id, unplaced_reason from visits where id = any($1::uuid[])`, [onDropped])).rows
+    for (const v of left) {
+      expect(v.technician_id).toBeNull()
+      expect(v.unplaced_reason).toMatch(new RegExp(`Wren Days-Test does not work on .*${dayName}`))
+    }
+    expect((await api(`/api/technicians/${wrenId}`, { method: 'PATCH', token: owner, body: { workingDays: keptDays } })).body.unassignedVisits).toEqual([])
   })
 
   it('only the owner manages days off, of their own company\'s technicians; bad input is a 400 naming the field', async () => {
@@ -196,8 +220,8 @@ describe('renewal keeps the customer\'s technician', () => {
 describe('regeneration after a plan edit', () => {
   it('plans the moved visits with the planner (working days and days off hold, the rest explained); a visit moved by hand stays', async () => {
     const plan = await aprilPlan(`Weekly April regen ${year}`, 3)
-    // Others stay on holiday in April (first test's days off); Tess works Monday to Wednesday.
-    await api(`/api/technicians/${tessId}`, { method: 'PATCH', token: owner, body: { workingDays: [1, 2, 3] } })
+    // Others stay on holiday in April (first test's days off); Wren works Monday to Wednesday.
+    await api(`/api/technicians/${wrenId}`, { method: 'PATCH', token: owner, body: { workingDays: [1, 2, 3] } })
     const { contractId } = await signCustomer('regen', plan.id, { latitude: 44.2, longitude: -91.3 })
     const before = await contractVisits([contractId])
     expect(before.length).toBeGreaterThanOrEqual(3)
@@ -207,7 +231,7 @@ describe('regeneration after a plan edit', () => {
     const moved = await api(`/api/visits/${hand.id}`, { method: 'PATCH', token: owner, body: { technicianId: others[0], scheduledOn: handDay, moveReason: 'Customer asked' } })
     expect(moved.status, JSON.stringify(moved.body)).toBe(200)
 
-    // Give or take 0 days: each window is its Thursday, a day Tess does not work and the others are off.
+    // Give or take 0 days: each window is its Thursday, a day Wren does not work and the others are off.
     const edit = await api(`/api/plans/${plan.id}`, { method: 'PATCH', token: owner, body: {
       templates: [{ id: plan.templates[0].id, visitType: 'routine', rrule: 'FREQ=WEEKLY', seasonFrom: firstThursdayOfApril(year), seasonTo: '04-30', toleranceDays: 0, durationMinutes: 60 }],
     } })
