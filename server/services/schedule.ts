@@ -1,12 +1,15 @@
 import { and, asc, count, eq, gte, inArray, isNull, lte, ne, sql, type SQL } from 'drizzle-orm'
-import type { VisitUpdateInput } from '../../shared/schemas/visits'
+import type { StaffProfileInput, VisitUpdateInput } from '../../shared/schemas/visits'
 import type { VisitType } from '../../shared/types/schedule'
+import { dayLoad, type DayLoad, type DayLoadStop } from '../../shared/utils/day-load'
+import { addDays, formatLocalDate } from '../../shared/utils/company-time'
 import { localTimeToInstant, localToday } from '../../shared/utils/recurrence'
 import { companies, contractFeatures, customers, sites, staffProfiles, users, visits, waterFeatures } from '../db/schema'
 import { ownCustomerId, type SessionUser } from '../utils/auth'
 import { useDb } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { recordAudit } from './audit'
+import { releasedWords, takeTechnicianOff } from './technician-days'
 
 const DEFAULT_CAPACITY_MINUTES = 420
 
@@ -16,20 +19,41 @@ export async function listTechnicians(actor: SessionUser) {
     id: users.id, name: users.name, role: users.role,
     capacityMinutes: sql<number>`coalesce(${staffProfiles.capacityMinutes}, ${DEFAULT_CAPACITY_MINUTES})`,
     homeLatitude: staffProfiles.homeLatitude, homeLongitude: staffProfiles.homeLongitude,
+    /** Their own working weekdays; null: the company's. */
+    workingDays: staffProfiles.workingDays,
   }).from(users).leftJoin(staffProfiles, eq(staffProfiles.userId, users.id))
     .where(and(eq(users.companyId, actor.companyId), eq(users.role, 'technician'), eq(users.active, true)))
     .orderBy(asc(users.name)).limit(100)
 }
 
-export async function updateStaffProfile(actor: SessionUser, userId: string, input: { capacityMinutes?: number, homeLatitude?: number | null, homeLongitude?: number | null }, ip: string) {
+/**
+ * Changes a staff member's capacity, home base or own working weekdays. Narrower working days take
+ * them off their scheduled visits from today on the weekdays they no longer work (each with the
+ * reason, listed in the answer as `unassignedVisits`), as a day off does.
+ */
+export async function updateStaffProfile(actor: SessionUser, userId: string, input: StaffProfileInput, ip: string) {
   const db = useDb()
-  const [u] = await db.select({ id: users.id }).from(users).where(and(eq(users.id, userId), eq(users.companyId, actor.companyId), ne(users.role, 'customer'))).limit(1)
+  const [u] = await db.select({ id: users.id, name: users.name }).from(users).where(and(eq(users.id, userId), eq(users.companyId, actor.companyId), ne(users.role, 'customer'))).limit(1)
   if (!u) throw httpError(404, 'No such staff member')
-  await db.transaction(async (tx) => {
+  const released = await db.transaction(async (tx) => {
     await tx.insert(staffProfiles).values({ userId, ...input }).onConflictDoUpdate({ target: staffProfiles.userId, set: input })
-    await recordAudit(tx, { action: 'staff.profile_changed', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'user', subjectId: userId, ip, detail: input })
+    let off: Awaited<ReturnType<typeof takeTechnicianOff>> = []
+    if (input.workingDays !== undefined) {
+      const [company] = await tx.select({ workingDays: companies.workingDays, tz: companies.timeZone }).from(companies).where(eq(companies.id, actor.companyId)).limit(1)
+      const works = input.workingDays ?? company!.workingDays
+      const notWorked = [1, 2, 3, 4, 5, 6, 7].filter(d => !works.includes(d))
+      if (notWorked.length) {
+        const names = notWorked.map(d => formatLocalDate(addDays('2024-01-01', d - 1), 'longWeekday')).join(', ')
+        off = await takeTechnicianOff(tx, actor.companyId, userId,
+          and(gte(visits.scheduledOn, localToday(company!.tz)), sql`extract(isodow from ${visits.scheduledOn})::int in (${sql.join(notWorked.map(d => sql`${d}`), sql`, `)})`)!,
+          `${u.name} does not work on ${names}: assign someone else or plan these weeks again`)
+      }
+    }
+    await recordAudit(tx, { action: 'staff.profile_changed', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'user', subjectId: userId, ip, detail: { ...input, visitsUnassigned: off.length } })
+    return off
   })
-  return (await listTechnicians(actor)).find(t => t.id === userId) ?? { id: userId, ...input }
+  const row = (await listTechnicians(actor)).find(t => t.id === userId) ?? { id: userId, ...input }
+  return { ...row, unassignedVisits: released, ...(released.length && { message: releasedWords(u.name, released.length) }) }
 }
 
 const visitColumns = {
@@ -41,7 +65,7 @@ const visitColumns = {
   siteLatitude: sites.latitude, siteLongitude: sites.longitude,
 }
 
-/** Visits between two dates for the week and month boards, with each technician's load per day. */
+/** Visits between two dates for the week and month boards, with each technician's load per day (driving included). */
 export async function board(actor: SessionUser, q: { from: string, to: string, technicianId?: string, visitType?: VisitType, includeCancelled: boolean }) {
   const db = useDb()
   const where: SQL[] = [eq(visits.companyId, actor.companyId), gte(visits.scheduledOn, q.from), lte(visits.scheduledOn, q.to)]
@@ -56,14 +80,23 @@ export async function board(actor: SessionUser, q: { from: string, to: string, t
       .where(and(...where)).orderBy(asc(visits.scheduledOn), asc(customers.name)).limit(2000),
     listTechnicians(actor),
   ])
-  const capacity = new Map(technicians.map(t => [t.id, t.capacityMinutes]))
-  const load: Record<string, Record<string, { minutes: number, capacity: number, over: boolean }>> = {}
+  // Each technician-day: visit time plus driving between its stops (shared/utils/day-load, the
+  // numbers the board shows), against the technician's capacity. Cancelled and skipped visits take no time.
+  const stopsOf = new Map<string, Map<string, DayLoadStop[]>>()
   for (const v of rows) {
-    if (!v.technicianId || v.status === 'cancelled') continue
-    const day = (load[v.scheduledOn] ??= {})
-    const entry = (day[v.technicianId] ??= { minutes: 0, capacity: capacity.get(v.technicianId) ?? DEFAULT_CAPACITY_MINUTES, over: false })
-    entry.minutes += v.durationMinutes
-    entry.over = entry.minutes > entry.capacity
+    if (!v.technicianId || v.status === 'cancelled' || v.status === 'skipped') continue
+    const day = stopsOf.get(v.scheduledOn) ?? new Map<string, DayLoadStop[]>()
+    stopsOf.set(v.scheduledOn, day.set(v.technicianId, [...(day.get(v.technicianId) ?? []), { id: v.id, durationMinutes: v.durationMinutes, lat: v.siteLatitude, lon: v.siteLongitude }]))
+  }
+  const techById = new Map(technicians.map(t => [t.id, t]))
+  const load: Record<string, Record<string, DayLoad>> = {}
+  for (const [day, perTech] of stopsOf) {
+    load[day] = {}
+    for (const [tid, stops] of perTech) {
+      const t = techById.get(tid)
+      const home = t?.homeLatitude != null && t.homeLongitude != null ? { lat: t.homeLatitude, lon: t.homeLongitude } : null
+      load[day][tid] = dayLoad(stops, home, t?.capacityMinutes ?? DEFAULT_CAPACITY_MINUTES)
+    }
   }
   return { from: q.from, to: q.to, visits: rows, technicians, load, unassigned: rows.filter(v => !v.technicianId && v.status === 'scheduled').length }
 }

@@ -2,11 +2,13 @@
 // windows, on open working days, within each technician's capacity (visits and driving), next to
 // the company's already-scheduled visits in the term, which stay where they are and count as
 // locked. What finds no place keeps its preferred day, unassigned, with the planner's reason.
-import { and, asc, eq, gte, inArray, isNotNull, isNull, lte, ne, or } from 'drizzle-orm'
+// A renewed contract's customer keeps the technician who did most of their last term's visits.
+import { and, asc, count, desc, eq, gte, inArray, isNotNull, lte, notInArray, sql } from 'drizzle-orm'
 import { planSeason, type PlannerTechnician, type PlannerVisit } from '../../shared/utils/planner/index'
 import type { LocalDate } from '../../shared/utils/recurrence'
 import { sites, staffProfiles, users, visits } from '../db/schema'
 import type { Tx } from '../utils/db'
+import { daysOffByTechnician } from './technician-days'
 
 export interface VisitToPlace {
   key: string
@@ -22,23 +24,40 @@ export interface VisitPlacement { day: LocalDate, technicianId: string | null, u
 
 export interface PlanningCompany { id: string, workingDays: readonly number[], baseLatitude: number | null, baseLongitude: number | null }
 
-/** The company's active technicians as the planner sees them (home: their own, else the company's base). */
+/**
+ * The company's active technicians as the planner sees them: their own working weekdays (else the
+ * company's), their days off, and their home (their own, else the company's base).
+ */
 export async function planningTechnicians(tx: Tx, company: PlanningCompany): Promise<PlannerTechnician[]> {
-  const rows = await tx.select({ id: users.id, name: users.name, capacity: staffProfiles.capacityMinutes, lat: staffProfiles.homeLatitude, lon: staffProfiles.homeLongitude })
+  const rows = await tx.select({
+    id: users.id, name: users.name, capacity: staffProfiles.capacityMinutes, lat: staffProfiles.homeLatitude, lon: staffProfiles.homeLongitude,
+    workingDays: staffProfiles.workingDays,
+  })
     .from(users).leftJoin(staffProfiles, eq(staffProfiles.userId, users.id))
     .where(and(eq(users.companyId, company.id), eq(users.role, 'technician'), eq(users.active, true)))
     .orderBy(asc(users.name))
   const base = companyBase(company)
-  return rows.map(t => ({ id: t.id, name: t.name, capacityMinutes: t.capacity ?? 420, workingDays: company.workingDays, home: { lat: t.lat ?? base.lat, lon: t.lon ?? base.lon } }))
+  const daysOff = await daysOffByTechnician(tx, company.id)
+  return rows.map(t => ({
+    id: t.id, name: t.name, capacityMinutes: t.capacity ?? 420, workingDays: t.workingDays ?? company.workingDays,
+    daysOff: daysOff.get(t.id) ?? [], home: { lat: t.lat ?? base.lat, lon: t.lon ?? base.lon },
+  }))
 }
 
 export function companyBase(company: PlanningCompany) {
   return { lat: company.baseLatitude ?? 0, lon: company.baseLongitude ?? 0 }
 }
 
+export interface PlacementOptions {
+  /** Scheduled visits being placed again (regeneration): they do not count as booked where they are now. */
+  replacingVisitIds?: readonly string[]
+  /** customerId → technicianId: who served the customer before, kept where they have room. */
+  previousAssignments?: Readonly<Record<string, string>>
+}
+
 export async function placeNewVisits(
   tx: Tx, company: PlanningCompany, term: { start: LocalDate, end: LocalDate }, closed: readonly LocalDate[],
-  toPlace: readonly VisitToPlace[], excludeContractId: string,
+  toPlace: readonly VisitToPlace[], opts: PlacementOptions = {},
 ): Promise<Map<string, VisitPlacement>> {
   const out = new Map<string, VisitPlacement>()
   if (!toPlace.length) return out
@@ -52,7 +71,7 @@ export async function placeNewVisits(
     .where(and(
       eq(visits.companyId, company.id), eq(visits.status, 'scheduled'), isNotNull(visits.technicianId),
       gte(visits.scheduledOn, term.start), lte(visits.scheduledOn, term.end),
-      or(isNull(visits.contractId), ne(visits.contractId, excludeContractId)),
+      ...(opts.replacingVisitIds?.length ? [notInArray(visits.id, [...opts.replacingVisitIds])] : []),
     ))
   const siteIds = [...new Set([...toPlace.map(v => v.siteId), ...booked.map(b => b.siteId)])]
   const siteRows = await tx.select({ id: sites.id, lat: sites.latitude, lon: sites.longitude }).from(sites).where(inArray(sites.id, siteIds))
@@ -70,10 +89,7 @@ export async function placeNewVisits(
       siteId: v.siteId, customerId: v.customerId, ...at(v.siteId),
     })),
   ]
-  const plan = planSeason({
-    visits: planner, closedDays: closed,
-    technicians,
-  })
+  const plan = planSeason({ visits: planner, closedDays: closed, technicians, previousAssignments: opts.previousAssignments })
   for (const p of plan.placed) {
     if (p.visitId.startsWith('new:')) out.set(p.visitId.slice(4), { day: p.day, technicianId: p.technicianId, unplacedReason: null })
   }
@@ -83,4 +99,19 @@ export async function placeNewVisits(
     out.set(v.key, { day: v.preferred, technicianId: null, unplacedReason: u.reason })
   }
   return out
+}
+
+/**
+ * The technician who did most of the customer's visits between two days (done visits first, then
+ * any assigned visit not cancelled), or null: the renewal's "keep the customer's technician".
+ */
+export async function customerTechnician(tx: Tx, companyId: string, customerId: string, span: { start: LocalDate, end: LocalDate }): Promise<string | null> {
+  const done = sql<number>`count(*) filter (where ${visits.status} = 'done')`
+  const [top] = await tx.select({ technicianId: visits.technicianId, done, all: count() }).from(visits)
+    .where(and(
+      eq(visits.companyId, companyId), eq(visits.customerId, customerId), isNotNull(visits.technicianId),
+      inArray(visits.status, ['done', 'in_progress', 'scheduled']), gte(visits.scheduledOn, span.start), lte(visits.scheduledOn, span.end),
+    ))
+    .groupBy(visits.technicianId).orderBy(desc(done), desc(count()), asc(visits.technicianId)).limit(1)
+  return top?.technicianId ?? null
 }

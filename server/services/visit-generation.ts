@@ -4,7 +4,7 @@ import { expandVisitSchedule } from '../../shared/utils/visit-windows'
 import { templateVisitSchedule } from '../../shared/schemas/visit-schedule'
 import { closedDays, companies, contractFeatures, contracts, planVisitTemplates, visits, waterFeatures } from '../db/schema'
 import type { Tx } from '../utils/db'
-import { placeNewVisits } from './season-planning'
+import { customerTechnician, placeNewVisits, type VisitPlacement, type VisitToPlace } from './season-planning'
 import { shapeDepthM, withSafety } from './visit-safety'
 
 type TemplateRow = typeof planVisitTemplates.$inferSelect
@@ -77,14 +77,32 @@ export async function regenerateContractVisits(tx: Tx, contractId: string, clock
   const template = new Map(templates.map(t => [t.id, t]))
   const startOf = (date: string) => localTimeToInstant(date, company!.dayStartTime, tz)
 
-  /** New visits the planner could not place: they wait unassigned on their preferred day, with the reason. */
+  // New visits, and moved ones a person did not place, go to the planner (as on activation): a day
+  // in their window and a technician with room. The customer keeps their technician where possible:
+  // who has most of this term's visits, else who did most of the previous term's.
+  const plannedByKey = new Map(planned.map(p => [p.key, p]))
+  const existingById = new Map(existing.map(e => [e.id, e]))
+  const replanned = r.reschedule.filter(m => !existingById.get(m.id)!.movedManually && plannedByKey.has(existingById.get(m.id)!.generationKey ?? ''))
+  const toPlace: VisitToPlace[] = [
+    ...r.insert.map(p => ({ key: p.key, date: p.date })),
+    ...replanned.map(m => ({ key: existingById.get(m.id)!.generationKey!, date: m.date })),
+  ].map(({ key, date }) => {
+    const w = plannedByKey.get(key)!
+    return { key, earliest: w.earliest, latest: w.latest, preferred: date, durationMinutes: template.get(w.templateId)!.durationMinutes, siteId: w.siteId, customerId: contract.customerId }
+  })
+  let placement = new Map<string, VisitPlacement>()
+  if (toPlace.length) {
+    const keeper = await customerTechnician(tx, contract.companyId, contract.customerId, { start: contract.termStart, end: contract.termEnd })
+      ?? (contract.previousContractId ? await previousTermTechnician(tx, contract) : null)
+    placement = await placeNewVisits(tx, company!, { start: contract.termStart, end: contract.termEnd }, closed.map(c => c.day), toPlace, {
+      replacingVisitIds: replanned.map(m => m.id),
+      ...(keeper && { previousAssignments: { [contract.customerId]: keeper } }),
+    })
+  }
+
+  /** Visits the planner could not place: they wait unassigned on their preferred day, with the reason. */
   const unplaced: Array<{ visitId: string, day: LocalDate, reason: string }> = []
   if (r.insert.length) {
-    const plannedByKey = new Map(planned.map(p => [p.key, p]))
-    const placement = await placeNewVisits(tx, company!, { start: contract.termStart, end: contract.termEnd }, closed.map(c => c.day), r.insert.map((p) => {
-      const w = plannedByKey.get(p.key)!
-      return { key: p.key, earliest: w.earliest, latest: w.latest, preferred: p.date, durationMinutes: template.get(p.templateId)!.durationMinutes, siteId: w.siteId, customerId: contract.customerId }
-    }), contractId)
     const inserted = await tx.insert(visits).values(r.insert.map((p) => {
       const t = template.get(p.templateId)!
       const siteId = plannedByKey.get(p.key)!.siteId
@@ -99,23 +117,33 @@ export async function regenerateContractVisits(tx: Tx, contractId: string, clock
     })).onConflictDoNothing().returning({ id: visits.id, day: visits.scheduledOn, reason: visits.unplacedReason })
     for (const row of inserted) if (row.reason) unplaced.push({ visitId: row.id, day: row.day, reason: row.reason })
   }
-  const byKey = new Map(planned.map(p => [p.key, p]))
-  const existingById = new Map(existing.map(e => [e.id, e]))
   for (const m of r.reschedule) {
-    const p = byKey.get(existingById.get(m.id)!.generationKey!)
+    const key = existingById.get(m.id)!.generationKey!
+    const p = plannedByKey.get(key)
     const t = p ? template.get(p.templateId)! : null
+    // A visit a person moved keeps its day and technician; the rest take the planner's place.
+    const placed = existingById.get(m.id)!.movedManually ? undefined : placement.get(key)
+    const day = placed?.day ?? m.date
     await tx.update(visits).set({
-      scheduledOn: m.date, startsAt: startOf(m.date),
+      scheduledOn: day, startsAt: startOf(day),
+      ...(placed && { technicianId: placed.technicianId, unplacedReason: placed.unplacedReason }),
       ...(t && { durationMinutes: t.durationMinutes, visitType: t.visitType }),
       ...(m.revive && { status: 'scheduled' as const, statusReason: '' }),
       sequence: sql`${visits.sequence} + 1`,
     }).where(eq(visits.id, m.id))
+    if (placed?.unplacedReason) unplaced.push({ visitId: m.id, day, reason: placed.unplacedReason })
   }
   if (r.cancel.length) {
     await tx.update(visits).set({ status: 'cancelled', statusReason: 'No longer in the plan', sequence: sql`${visits.sequence} + 1` })
       .where(inArray(visits.id, r.cancel))
   }
   return { inserted: r.insert.length, rescheduled: r.reschedule.length, cancelled: r.cancel.length, unplaced }
+}
+
+/** Who did most of the customer's visits in the term this contract renews. */
+async function previousTermTechnician(tx: Tx, contract: typeof contracts.$inferSelect) {
+  const [prev] = await tx.select({ start: contracts.termStart, end: contracts.termEnd }).from(contracts).where(eq(contracts.id, contract.previousContractId!)).limit(1)
+  return prev ? customerTechnician(tx, contract.companyId, contract.customerId, prev) : null
 }
 
 /** Cancels a contract's future, unstarted visits (pause, end, cancel), with the reason shown to people. */

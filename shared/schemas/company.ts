@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { decimal, localDate, text, updateSchema, wholeNumber } from './fields'
+import { decimal, localDate, text, updateSchema, wholeNumber, workingWeekdays } from './fields'
 
 /** True when the runtime knows this IANA time zone. */
 export function isTimeZone(tz: string) {
@@ -41,8 +41,7 @@ export const companyUpdateSchema = updateSchema({
   unitSystem: z.enum(['us', 'metric'], 'Choose US or metric units'),
   timeZone: text(64).refine(isTimeZone, 'Use an IANA time zone, e.g. America/Chicago'),
   /** ISO weekdays worked, 1 = Monday … 7 = Sunday. */
-  workingDays: z.array(wholeNumber('A working day', 1, 7, { min: 'Use 1 (Monday) to 7 (Sunday)', max: 'Use 1 (Monday) to 7 (Sunday)' }))
-    .min(1, 'Work at least one day a week').max(7).transform(d => [...new Set(d)].sort()),
+  workingDays: workingWeekdays,
   dayStartTime: z.string('Use a time like 08:00').regex(/^([01]\d|2[0-3]):[0-5]\d$/, 'Use a time like 08:00'),
   baseLatitude: decimal('Latitude', -90, 90).nullable(),
   baseLongitude: decimal('Longitude', -180, 180).nullable(),

@@ -84,6 +84,10 @@ export function wholeNumber(what: string, min: number, max: number, messages: { 
     .max(Math.min(max, PG_INT_MAX), messages.max ?? `${what} is at most ${max.toLocaleString('en-US')}`)
 }
 
+/** ISO weekdays worked, 1 = Monday … 7 = Sunday: at least one, each once, in order. */
+export const workingWeekdays = z.array(wholeNumber('A working day', 1, 7, { min: 'Use 1 (Monday) to 7 (Sunday)', max: 'Use 1 (Monday) to 7 (Sunday)' }), 'Working days are a list of weekdays')
+  .min(1, 'Work at least one day a week').max(7, 'A week has seven days').transform(d => [...new Set(d)].sort())
+
 /** A finite number between `min` and `max` (measurements, stored as double precision). */
 export function decimal(what: string, min: number, max: number, messages: { min?: string, max?: string } = {}) {
   return z.number(`${what} is a number`)

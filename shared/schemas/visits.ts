@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { VISIT_STATUSES, VISIT_TYPES } from '../types/schedule'
-import { decimal, localDate, text, updateSchema, wholeNumber } from './fields'
+import { decimal, localDate, text, updateSchema, wholeNumber, workingWeekdays } from './fields'
 
 export const boardQuery = z.object({
   from: localDate,
@@ -31,11 +31,16 @@ export const routeOrderSchema = z.object({
   visitIds: z.array(z.uuid('Not a valid visit id')).max(60),
 })
 
-/** PATCH of a technician's capacity and home base: exactly the fields sent change. */
+/**
+ * PATCH of a technician's capacity, home base and own working weekdays (null: the company's);
+ * exactly the fields sent change.
+ */
 export const staffProfileSchema = updateSchema({
   capacityMinutes: wholeNumber('Capacity', 60, 960, { min: 'At least an hour', max: 'At most 16 hours' }),
   homeLatitude: decimal('Latitude', -90, 90).nullable(),
   homeLongitude: decimal('Longitude', -180, 180).nullable(),
+  workingDays: workingWeekdays.nullable(),
 })
+export type StaffProfileInput = z.output<typeof staffProfileSchema>
 
 export const visitStatusFilter = z.enum(VISIT_STATUSES)
