@@ -112,7 +112,7 @@ export async function getVisit(actor: SessionUser, id: string) {
   return v
 }
 
-/** Assigns a technician or moves a visit (with a reason); a moved visit is left alone by regeneration. */
+/** Assigns a technician or moves a visit (with a reason); either marks it moved by hand, so regeneration and the planner leave it alone. */
 export async function updateVisit(actor: SessionUser, id: string, input: VisitUpdateInput, ip: string) {
   const before = await getVisit(actor, id)
   if (['done', 'cancelled'].includes(before.status)) throw httpError(409, `This visit is ${before.status} and cannot change`)
@@ -124,11 +124,12 @@ export async function updateVisit(actor: SessionUser, id: string, input: VisitUp
   }
   await db.transaction(async (tx) => {
     const set: Partial<typeof visits.$inferInsert> = {}
-    if (input.technicianId !== undefined) set.technicianId = input.technicianId
+    // Assigned or moved by hand: the planner keeps it where the owner put it, and its "could not place" reason is over.
+    if (input.technicianId !== undefined && input.technicianId !== before.technicianId) Object.assign(set, { technicianId: input.technicianId, movedManually: true, unplacedReason: null })
     if (input.durationMinutes !== undefined) set.durationMinutes = input.durationMinutes
     if (input.scheduledOn && input.scheduledOn !== before.scheduledOn) {
       const [company] = await tx.select({ tz: companies.timeZone, start: companies.dayStartTime }).from(companies).where(eq(companies.id, actor.companyId)).limit(1)
-      Object.assign(set, { scheduledOn: input.scheduledOn, startsAt: localTimeToInstant(input.scheduledOn, company!.start, company!.tz), movedManually: true, moveReason: input.moveReason ?? '', routePosition: null })
+      Object.assign(set, { scheduledOn: input.scheduledOn, startsAt: localTimeToInstant(input.scheduledOn, company!.start, company!.tz), movedManually: true, unplacedReason: null, moveReason: input.moveReason ?? '', routePosition: null })
     }
     await tx.update(visits).set({ ...set, sequence: sql`${visits.sequence} + 1` }).where(eq(visits.id, id))
     await recordAudit(tx, {

@@ -260,7 +260,7 @@ const SPECS: Record<string, Spec> = {
       return out
     },
     state: () => one(db.select().from(schema.visits).where(eq(schema.visits.id, ids.visit!))),
-    derived: { scheduledOn: ['startsAt', 'movedManually', 'moveReason', 'routePosition'], '*': ['sequence'] },
+    derived: { scheduledOn: ['startsAt', 'movedManually', 'unplacedReason', 'moveReason', 'routePosition'], technicianId: ['movedManually', 'unplacedReason'], '*': ['sequence'] },
     echo: ['technicianId', 'durationMinutes'],
     check: (b, before, after) => {
       if (b.scheduledOn) expect(after.scheduledOn).toBe(b.scheduledOn)

@@ -114,6 +114,14 @@ describe('contracts and their visits', () => {
     expect(noReason.status).toBe(400)
     expect(noReason.body.data.fields.moveReason).toBeTruthy()
 
+    // Handing a visit to a technician without changing its day also counts as by hand: the planner keeps it.
+    const handed = visits.find((v: { id: string, visitType: string }) => v.visitType === 'routine' && v.id !== moved.id)
+    const techs = (await api('/api/technicians', { token: owner })).body.rows as Array<{ id: string }>
+    const other = techs.find(t => t.id !== handed.technicianId)!
+    const h = await api(`/api/visits/${handed.id}`, { method: 'PATCH', token: owner, body: { technicianId: other.id } })
+    expect(h.status, JSON.stringify(h.body)).toBe(200)
+    expect(h.body).toMatchObject({ technicianId: other.id, movedManually: true, scheduledOn: handed.scheduledOn })
+
     const full = (await api(`/api/plans/${p.id}`, { token: owner })).body
     const edited = await api(`/api/plans/${p.id}`, {
       method: 'PATCH', token: owner,
@@ -132,8 +140,9 @@ describe('contracts and their visits', () => {
     const routine = after.filter((v: { visitType: string, status: string }) => v.visitType === 'routine' && v.status !== 'cancelled')
     const keptMoved = after.find((v: { id: string }) => v.id === moved.id)
     expect(keptMoved.scheduledOn).toBe(`${nextYear}-05-08`)
+    expect(after.find((v: { id: string }) => v.id === handed.id)).toMatchObject({ scheduledOn: handed.scheduledOn, technicianId: other.id })
     // The routine visits now fall in the new season, June to September.
-    const followers = routine.filter((v: { id: string }) => v.id !== moved.id)
+    const followers = routine.filter((v: { id: string }) => v.id !== moved.id && v.id !== handed.id)
     expect(followers.length).toBeGreaterThan(0)
     for (const v of followers) {
       expect(v.scheduledOn >= `${nextYear}-06-01` && v.scheduledOn <= `${nextYear}-09-30`, v.scheduledOn).toBe(true)
