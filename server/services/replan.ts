@@ -4,7 +4,7 @@
 // preview, plans again (the same input gives the same moves) and writes the moves in one transaction.
 import { createHash } from 'node:crypto'
 import { and, asc, between, eq, gte, inArray, isNotNull, isNull, lte, sql } from 'drizzle-orm'
-import { replanDateRangeSteps, runPlannerSteps, type CurrentPlacement, type PlannerMove, type PlannerProgress, type PlannerSteps, type PlannerVisit } from '../../shared/utils/planner/index'
+import { replanDateRangeSteps, type CurrentPlacement, type PlannerMove, type PlannerProgress, type PlannerSteps, type PlannerVisit } from '../../shared/utils/planner/index'
 import { localTimeToInstant, type LocalDate } from '../../shared/utils/recurrence'
 import { expandVisitSchedule } from '../../shared/utils/visit-windows'
 import { templateVisitSchedule } from '../../shared/schemas/visit-schedule'
@@ -96,7 +96,7 @@ async function runStepsAsync<T>(steps: PlannerSteps<T>, onProgress?: (p: Planner
 async function preview(state: Awaited<ReturnType<typeof loadReplan>>, range: Range, onProgress?: (p: PlannerProgress) => void) {
   if (!state.technicians.length) return { moves: [] as Array<PlannerMove & { why: string }>, days: [], loads: [] as ReplanDayLoad[] }
   const steps = replanDateRangeSteps({ visits: state.plannerVisits, technicians: state.technicians, closedDays: state.closed }, state.current, range)
-  const p = onProgress ? await runStepsAsync(steps, onProgress) : runPlannerSteps(steps)
+  const p = await runStepsAsync(steps, onProgress)
   // The load of each technician-day in the range as it is now: placed and locked visits.
   const byId = new Map(state.plannerVisits.map(v => [v.id, v]))
   const now = new Map<string, Array<{ id: string, durationMinutes: number, lat: number, lon: number }>>()

@@ -20,23 +20,30 @@ function streamPreview(event: H3Event, run: (send: (p: ReplanProgress) => void) 
   setResponseHeaders(event, { 'content-type': 'application/x-ndjson; charset=utf-8', 'cache-control': 'no-store', 'x-accel-buffering': 'no' })
   const encoder = new TextEncoder()
   let last = ''
+  let gone = false // the page went away: stop planning, write nothing more
   const stream = new ReadableStream<Uint8Array>({
     async start(controller) {
       const line = (value: unknown) => controller.enqueue(encoder.encode(`${JSON.stringify(value)}\n`))
       try {
         const preview = await run((p) => {
+          if (gone) throw new Error('The page stopped listening')
           const text = JSON.stringify(p)
           if (text !== last) line(p)
           last = text
         })
+        if (gone) return
         line({ preview })
       }
       catch (e) {
+        if (gone) return
         const err = e as { statusCode?: number, message?: string }
         if (!err.statusCode || err.statusCode >= 500) console.error('replan preview failed', e)
         line({ error: err.statusCode && err.statusCode < 500 ? { statusCode: err.statusCode, message: err.message } : { statusCode: 500, message: 'The preview could not be worked out; nothing changed. Try again.' } })
       }
       controller.close()
+    },
+    cancel() {
+      gone = true
     },
   })
   return sendStream(event, stream)
