@@ -124,4 +124,44 @@ describe('plan these weeks again, two weeks as one plan', () => {
     const tess = await tokenFor(demo.tess)
     expect((await streamed(RANGE, tess)).status).toBe(403)
   })
+
+  it('half a year of weekly visits: progress in steps while the planner works, the first line before the plan is done', async () => {
+    // 16 customers with a weekly visit all through 2036; the range is 26 weeks of it (about 416 visits).
+    const plan = await api('/api/plans', { method: 'POST', token: owner, body: {
+      name: 'Replan weekly', priceMinor: 10_000, currency: 'USD', billingCadence: 'per_visit', termMonths: 12,
+      templates: [{ visitType: 'routine', rrule: 'FREQ=WEEKLY', seasonFrom: '01-01', seasonTo: '12-31', toleranceDays: 2, durationMinutes: 30, checklist: [{ label: 'Skimmer emptied' }] }],
+    } })
+    expect(plan.status, JSON.stringify(plan.body)).toBe(201)
+    for (let i = 0; i < 16; i++) {
+      const c = await api('/api/customers', { method: 'POST', token: owner, body: { name: `Weekly Replan ${i}`, kind: 'household', contacts: [] } })
+      const s = await api('/api/sites', { method: 'POST', token: owner, body: { customerId: c.body.id, name: 'Home', line1: `${i + 1} Weekly Row`, city: 'Larchfield', latitude: 44.1 + i * 0.004, longitude: -91.3 } })
+      const f = await api('/api/features', { method: 'POST', token: owner, body: { siteId: s.body.id, name: 'Pond', kind: 'koi_pond', shape: { kind: 'rectangle', lengthM: 3, widthM: 2, depthM: 1 } } })
+      const k = await api('/api/contracts', { method: 'POST', token: owner, body: { customerId: c.body.id, planId: plan.body.id, featureIds: [f.body.id], termStart: '2036-01-01' } })
+      expect(k.status, JSON.stringify(k.body)).toBe(201)
+      expect((await api(`/api/contracts/${k.body.id}/actions`, { method: 'POST', token: owner, body: { action: 'activate' } })).status).toBe(200)
+    }
+    const res = await fetch(`${baseUrl()}/api/schedule/replan`, {
+      method: 'POST', body: JSON.stringify({ from: '2036-03-03', to: '2036-08-30' }),
+      headers: { 'authorization': `Bearer ${owner}`, 'content-type': 'application/json', 'accept': 'application/x-ndjson' },
+    })
+    expect(res.status).toBe(200)
+    const reader = res.body!.pipeThrough(new TextDecoderStream()).getReader()
+    const chunks: string[] = []
+    for (;;) {
+      const { value, done } = await reader.read()
+      if (done) break
+      chunks.push(value)
+    }
+    // The answer came in pieces, the first before the preview was ready.
+    expect(chunks.length).toBeGreaterThan(1)
+    expect(chunks[0]).not.toContain('"preview"')
+    const lines = chunks.join('').trim().split('\n').map(l => JSON.parse(l))
+    expect(lines.at(-1).preview.token).toMatch(/^[0-9a-f]{40}$/)
+    const planning = lines.filter(l => l.stage === 'planning') as Array<{ done: number, total: number }>
+    const total = planning.at(-1)!.total
+    expect(total).toBeGreaterThan(400)
+    expect(planning.at(-1)!.done).toBe(total)
+    // PLANNER_STEP_VISITS (250) visits a step: one report on the way at least.
+    expect(planning.map(p => p.done)).toContain(250)
+  })
 })
