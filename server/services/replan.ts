@@ -1,9 +1,10 @@
-// "Plan these weeks again" and the tray of visits the planner could not place. The preview changes
-// nothing; applying re-reads the visits, refuses (409) when anything changed since the preview,
-// and writes exactly the preview's moves in one transaction.
+// "Plan these weeks again" and the tray of visits the planner could not place. The whole range is
+// planned at once (one preview, one token). The preview changes nothing and can report its
+// progress as it goes; applying re-reads the visits, refuses (409) when anything changed since the
+// preview, plans again (the same input gives the same moves) and writes the moves in one transaction.
 import { createHash } from 'node:crypto'
 import { and, asc, between, eq, gte, inArray, isNotNull, isNull, lte, sql } from 'drizzle-orm'
-import { replanDateRange, type CurrentPlacement, type PlannerMove, type PlannerVisit } from '../../shared/utils/planner/index'
+import { replanDateRangeSteps, type CurrentPlacement, type PlannerMove, type PlannerProgress, type PlannerSteps, type PlannerVisit } from '../../shared/utils/planner/index'
 import { localTimeToInstant, type LocalDate } from '../../shared/utils/recurrence'
 import { expandVisitSchedule } from '../../shared/utils/visit-windows'
 import { templateVisitSchedule } from '../../shared/schemas/visit-schedule'
@@ -76,9 +77,26 @@ async function loadReplan(tx: Tx, companyId: string, range: Range) {
 /** One technician-day's minutes (visits and driving) before and after the preview's moves. */
 export interface ReplanDayLoad { day: LocalDate, technicianId: string, capacityMinutes: number, beforeMinutes: number, afterMinutes: number }
 
-function preview(state: Awaited<ReturnType<typeof loadReplan>>, range: Range) {
+/** What the page is told while a preview is worked out. */
+export type ReplanProgress = { stage: 'reading', done: 0, total: 0 } | PlannerProgress
+
+/**
+ * Drives a planner generator to its end, giving the event loop a turn between steps so other
+ * requests run and `onProgress` output (a streamed answer) reaches the page.
+ */
+async function runStepsAsync<T>(steps: PlannerSteps<T>, onProgress?: (p: PlannerProgress) => void): Promise<T> {
+  for (;;) {
+    const r = steps.next()
+    if (r.done) return r.value
+    onProgress?.(r.value)
+    await new Promise(setImmediate)
+  }
+}
+
+async function preview(state: Awaited<ReturnType<typeof loadReplan>>, range: Range, onProgress?: (p: PlannerProgress) => void) {
   if (!state.technicians.length) return { moves: [] as Array<PlannerMove & { why: string }>, days: [], loads: [] as ReplanDayLoad[] }
-  const p = replanDateRange({ visits: state.plannerVisits, technicians: state.technicians, closedDays: state.closed }, state.current, range)
+  const steps = replanDateRangeSteps({ visits: state.plannerVisits, technicians: state.technicians, closedDays: state.closed }, state.current, range)
+  const p = await runStepsAsync(steps, onProgress)
   // The load of each technician-day in the range as it is now: placed and locked visits.
   const byId = new Map(state.plannerVisits.map(v => [v.id, v]))
   const now = new Map<string, Array<{ id: string, durationMinutes: number, lat: number, lon: number }>>()
@@ -127,11 +145,12 @@ async function movedVisits(tx: Tx, companyId: string, ids: string[]) {
     .where(and(eq(visits.companyId, companyId), inArray(visits.id, ids)))
 }
 
-/** The moves "plan these weeks again" would make; nothing changes. */
-export async function replanPreview(actor: SessionUser, range: Range) {
+/** The moves "plan these weeks again" would make; nothing changes. `onProgress` hears how far it is. */
+export async function replanPreview(actor: SessionUser, range: Range, onProgress?: (p: ReplanProgress) => void) {
+  onProgress?.({ stage: 'reading', done: 0, total: 0 })
   return useDb().transaction(async (tx) => {
     const state = await loadReplan(tx, actor.companyId, range)
-    const { moves, days, loads } = preview(state, range)
+    const { moves, days, loads } = await preview(state, range, onProgress)
     const details = await movedVisits(tx, actor.companyId, moves.map(m => m.visitId))
     return { from: range.from, to: range.to, token: state.token, moves, days, loads, visits: details, applied: false }
   })
@@ -144,23 +163,31 @@ export async function replanApply(actor: SessionUser, range: Range, token: strin
     await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${`replan:${actor.companyId}`}))`)
     const state = await loadReplan(tx, actor.companyId, range)
     if (state.token !== token) throw httpError(409, 'The schedule changed since the preview: look at the new preview before applying')
-    const { moves, days, loads } = preview(state, range)
-    for (const m of moves) {
-      if (m.to) {
-        await tx.update(visits).set({
-          scheduledOn: m.to.day, startsAt: localTimeToInstant(m.to.day, state.company.dayStartTime, state.company.timeZone),
-          technicianId: m.to.technicianId, unplacedReason: null, sequence: sql`${visits.sequence} + 1`,
-        }).where(and(eq(visits.id, m.visitId), eq(visits.companyId, actor.companyId)))
-      }
-      else {
-        await tx.update(visits).set({ technicianId: null, unplacedReason: m.reason ?? 'No day with room in its window', sequence: sql`${visits.sequence} + 1` })
-          .where(and(eq(visits.id, m.visitId), eq(visits.companyId, actor.companyId)))
-      }
-    }
+    const { moves, days, loads } = await preview(state, range)
+    await writeMoves(tx, actor.companyId, state.company, moves)
     await recordAudit(tx, { action: 'schedule.replanned', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'company', subjectId: actor.companyId, ip, detail: { from: range.from, to: range.to, moves: moves.length } })
     const details = await movedVisits(tx, actor.companyId, moves.map(m => m.visitId))
     return { from: range.from, to: range.to, token: state.token, moves, days, loads, visits: details, applied: true }
   })
+}
+
+/** Moves per statement: 5 parameters each, well under PostgreSQL's 65,535 parameters. */
+const MOVES_PER_STATEMENT = 5000
+
+/**
+ * Writes a preview's moves set-based (one `update … from (values …)` per few thousand moves): a
+ * move with a day gets that day, its start time and technician; one without loses its technician
+ * and keeps the reason. Each moved visit's sequence goes up by one.
+ */
+async function writeMoves(tx: Tx, companyId: string, company: { dayStartTime: string, timeZone: string }, moves: readonly PlannerMove[]) {
+  for (let i = 0; i < moves.length; i += MOVES_PER_STATEMENT) {
+    const rows = moves.slice(i, i + MOVES_PER_STATEMENT).map(m => sql`(${m.visitId}::uuid, ${m.to?.day ?? null}::date, ${m.to ? localTimeToInstant(m.to.day, company.dayStartTime, company.timeZone).toISOString() : null}::timestamptz, ${m.to?.technicianId ?? null}::uuid, ${m.to ? null : (m.reason ?? 'No day with room in its window')}::text)`)
+    await tx.execute(sql`update visits as v set
+        scheduled_on = coalesce(m.day, v.scheduled_on), starts_at = coalesce(m.starts_at, v.starts_at),
+        technician_id = m.technician_id, unplaced_reason = m.reason, sequence = v.sequence + 1
+      from (values ${sql.join(rows, sql`, `)}) as m(id, day, starts_at, technician_id, reason)
+      where v.id = m.id and v.company_id = ${companyId}::uuid`)
+  }
 }
 
 /**

@@ -162,18 +162,46 @@ describe('plan these weeks again, from the board', () => {
 
       const { context, page } = await openBoard(size, w.from)
       await page.locator(`section[data-day="${w.from}"]`).getByText('Over capacity').waitFor()
-      // Each week's preview answers a little late, so the progress line can be seen.
+      // Every call answers a little late, and each line of the streamed preview reaches the page
+      // 300 ms after the one before, so each progress step can be seen as it comes.
       await page.route('**/api/schedule/replan', async (route) => {
         await new Promise(r => setTimeout(r, 400))
         await route.continue()
+      })
+      await page.evaluate(() => {
+        const real = window.fetch.bind(window)
+        window.fetch = async (input, init) => {
+          const res = await real(input, init)
+          const accept = new Headers(init?.headers).get('accept') ?? ''
+          if (!String(input).includes('/api/schedule/replan') || !accept.includes('application/x-ndjson') || !res.ok) return res
+          const lines = (await res.text()).split('\n').filter(Boolean)
+          const body = new ReadableStream<Uint8Array>({
+            async pull(controller) {
+              const line = lines.shift()
+              if (line === undefined) return controller.close()
+              await new Promise(r => setTimeout(r, 300))
+              controller.enqueue(new TextEncoder().encode(`${line}\n`))
+            },
+          })
+          return new Response(body, { status: res.status, headers: res.headers })
+        }
+      })
+      const requests: Array<{ from: string, to: string, apply?: boolean }> = []
+      page.on('request', (r) => {
+        if (r.url().endsWith('/api/schedule/replan') && r.method() === 'POST') requests.push(r.postDataJSON())
       })
       await page.getByRole('button', { name: 'Plan these weeks again' }).click()
       const panel = page.getByTestId('replan-panel')
       await expect(panel.getByLabel('First day to plan again').inputValue()).resolves.toBe(w.from)
       await panel.getByLabel('Last day to plan again').fill(w.to)
       await panel.getByRole('button', { name: 'Show what would move' }).click()
-      await panel.getByTestId('replan-progress').filter({ hasText: 'Planning week 2 of 2' }).waitFor()
+      await panel.getByTestId('replan-progress').filter({ hasText: 'Reading the schedule for these days' }).waitFor()
+      await panel.getByTestId('replan-progress').filter({ hasText: /Planning \d+ of \d+ visits…/ }).waitFor()
+      await expect(panel.getByRole('progressbar').count()).resolves.toBe(1)
       await panel.getByTestId('replan-count').filter({ hasText: /\d+ visits? would move/ }).waitFor()
+      // One preview for both weeks: one request for the whole range, and the preview names its last day.
+      expect(requests).toEqual([{ from: w.from, to: w.to }])
+      await expect(panel.getByTestId('replan-count').textContent()).resolves.toContain(w.lastWords)
       const firstCount = Number((await panel.getByTestId('replan-count').textContent())!.match(/(\d+) visits? would move/)![1])
       // 12 hours of visits on a 7-hour day: at least three must go elsewhere.
       expect(firstCount).toBeGreaterThanOrEqual(3)
@@ -193,8 +221,12 @@ describe('plan these weeks again, from the board', () => {
       await panel.getByTestId('replan-count').filter({ hasText: /\d+ visits? would move/ }).waitFor()
       const count = Number((await panel.getByTestId('replan-count').textContent())!.match(/(\d+) visits? would move/)![1])
       expect(count).toBeGreaterThanOrEqual(3)
+      requests.length = 0
       await panel.getByRole('button', { name: /^Apply \d+ moves?$/ }).click()
+      await panel.getByTestId('replan-progress').filter({ hasText: `Applying ${count} move` }).waitFor()
       await panel.getByTestId('replan-applied').filter({ hasText: `Applied ${count} move` }).waitFor()
+      // Applied in one call, with the preview's one token.
+      expect(requests).toEqual([{ from: w.from, to: w.to, apply: true, token: expect.any(String) }])
       const after = await snapshot()
       const moved = after.filter(r => before.find(b => b.id === r.id)!.day !== r.day || before.find(b => b.id === r.id)!.technician_id !== r.technician_id)
       expect(moved.length).toBe(count)

@@ -1,6 +1,6 @@
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
-import { planSeason, planSeasonBaseline, replanDateRange, type PlannerInput, type SeasonPlan } from '../../shared/utils/planner/index'
+import { PLANNER_STEP_VISITS, planSeason, planSeasonBaseline, planSeasonSteps, replanDateRange, replanDateRangeSteps, type PlannerInput, type PlannerProgress, type PlannerSteps, type SeasonPlan } from '../../shared/utils/planner/index'
 import { routeLegs } from '../../shared/utils/route-order'
 
 // Random small companies over three fixed weeks (Monday 5 April – Sunday 25 April 2027);
@@ -11,7 +11,7 @@ const isoWeekday = (d: string) => new Date(`${d}T00:00:00Z`).getUTCDay() || 7
 const dayIndex = fc.integer({ min: 0, max: DAYS.length - 1 })
 const position = fc.record({ lat: fc.double({ min: 44.9, max: 45.1, noNaN: true }), lon: fc.double({ min: -93.2, max: -92.8, noNaN: true }) })
 
-const company = (withLocks: boolean) => fc.record({
+const company = (withLocks: boolean, maxVisits = 40) => fc.record({
   techs: fc.array(fc.record({
     capacityMinutes: fc.integer({ min: 60, max: 480 }),
     workingDays: fc.subarray([1, 2, 3, 4, 5, 6, 7]),
@@ -23,7 +23,7 @@ const company = (withLocks: boolean) => fc.record({
     a: dayIndex, b: dayIndex, p: fc.double({ min: 0, max: 1, noNaN: true }),
     durationMinutes: fc.integer({ min: 5, max: 240 }), at: position, customer: fc.integer({ min: 0, max: 6 }),
     lock: withLocks ? fc.option(fc.record({ day: dayIndex, tech: fc.nat() }), { freq: 4 }) : fc.constant(null),
-  }), { maxLength: 40 }),
+  }), { maxLength: maxVisits }),
   speedKmh: fc.integer({ min: 15, max: 80 }),
   detourFactor: fc.double({ min: 1, max: 2, noNaN: true }),
 }).map(({ techs, closed, visits, speedKmh, detourFactor }): PlannerInput => ({
@@ -132,5 +132,62 @@ describe('planner properties (fast-check)', () => {
         expect([...(input.closedDays ?? []), ...(t.daysOff ?? [])]).not.toContain(m.to!.day)
       }
     }), { numRuns: 100 })
+  })
+})
+
+/** Steps a planner generator by hand: every progress it yields, and what it returns. */
+function stepAll<T>(steps: PlannerSteps<T>): { progress: PlannerProgress[], result: T } {
+  const progress: PlannerProgress[] = []
+  for (;;) {
+    const r = steps.next()
+    if (r.done) return { progress, result: r.value }
+    progress.push(r.value)
+  }
+}
+
+function expectProgressRises(progress: PlannerProgress[], total: number) {
+  expect(progress.length).toBeGreaterThan(0)
+  for (const p of progress) expect(p.total).toBe(total)
+  for (let i = 1; i < progress.length; i++) expect(progress[i]!.done).toBeGreaterThanOrEqual(progress[i - 1]!.done)
+  expect(progress[0]!.done).toBe(0)
+  expect(progress.at(-1)!.done).toBe(total)
+  // A step at least every PLANNER_STEP_VISITS visits while placing.
+  const placing = progress.filter(p => p.stage === 'planning').map(p => p.done)
+  for (let i = 1; i < placing.length; i++) expect(placing[i]! - placing[i - 1]!).toBeLessThanOrEqual(PLANNER_STEP_VISITS)
+}
+
+describe('the planner in steps (fast-check)', () => {
+  it('stepping planSeasonSteps by hand gives the same plan as planSeason; progress rises and ends at the number of visits to plan', () => {
+    // Up to 700 visits, so most runs take several steps of PLANNER_STEP_VISITS.
+    fc.assert(fc.property(company(true, 700), (input) => {
+      const { progress, result } = stepAll(planSeasonSteps(input))
+      expect(result).toEqual(planSeason(input))
+      expectProgressRises(progress, input.visits.filter(v => !v.locked).length)
+    }), { numRuns: 25 })
+  })
+
+  it('stepping replanDateRangeSteps gives the same preview as replanDateRange', () => {
+    fc.assert(fc.property(company(true, 400), dayIndex, dayIndex, (input, a, b) => {
+      const range = { from: DAYS[Math.min(a, b)]!, to: DAYS[Math.max(a, b)]! }
+      const current = planSeason(input).placed.map(({ visitId, day, technicianId }) => ({ visitId, day, technicianId }))
+      const { progress, result } = stepAll(replanDateRangeSteps(input, current, range))
+      expect(result).toEqual(replanDateRange(input, current, range))
+      expect(progress.length).toBeGreaterThan(0)
+      expect(progress.at(-1)!.done).toBe(progress.at(-1)!.total)
+    }), { numRuns: 20 })
+  })
+
+  it('a season of 1,000 visits reports its progress in steps of PLANNER_STEP_VISITS', () => {
+    const input: PlannerInput = {
+      technicians: [{ id: 't0', capacityMinutes: 480, workingDays: [1, 2, 3, 4, 5], home: { lat: 45, lon: -93 } }],
+      visits: Array.from({ length: 1000 }, (_, i) => ({
+        id: `v${i}`, windowEarliest: DAYS[0]!, windowLatest: DAYS[20]!, durationMinutes: 30, siteId: `s${i}`, customerId: `c${i % 50}`,
+        lat: 45 + (i % 10) * 0.002, lon: -93 + (i % 7) * 0.002,
+      })),
+    }
+    const { progress, result } = stepAll(planSeasonSteps(input))
+    expect(result).toEqual(planSeason(input))
+    expectProgressRises(progress, 1000)
+    expect(progress.filter(p => p.stage === 'planning').map(p => p.done)).toEqual([0, 250, 500, 750, 1000])
   })
 })

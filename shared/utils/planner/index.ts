@@ -12,9 +12,11 @@
 //   plan.placed → write day and technician; plan.unplaced → the tray, with plan.unplaced[i].reason;
 //   plan.days → each day's load against capacity (visits + driving).
 //   replanDateRange(input, currentPlacements, { from, to }).moves → the preview; apply only on confirmation.
-export { planSeason, PLANNER_WEIGHTS } from './plan-season'
+//   planSeasonSteps / replanDateRangeSteps: the same work as a generator yielding progress (steps.ts).
+export { planSeason, planSeasonSteps, PLANNER_WEIGHTS } from './plan-season'
 export { planSeasonBaseline } from './baseline'
-export { replanDateRange, type CurrentPlacement } from './replan'
+export { replanDateRange, replanDateRangeSteps, type CurrentPlacement } from './replan'
+export { runPlannerSteps, PLANNER_STEP_VISITS, type PlannerProgress, type PlannerSteps } from './steps'
 export { plannerDateWords } from './words'
 export {
   PlannerInputError,

@@ -21,6 +21,7 @@ import { balancedGroups, gridCells, spreadCentres, type AreaItem } from './areas
 import type { Insertion } from './day-route'
 import { PlanBook } from './plan-book'
 import { plannerDayNumber, plannerWeekday, preparePlannerInput, type PreparedInput } from './prepare'
+import { PLANNER_STEP_VISITS, runPlannerSteps, type PlannerSteps } from './steps'
 import type { PlannerInput, SeasonPlan } from './types'
 
 /** Cost weights, in road km of extra driving (tuning values, no source). */
@@ -231,7 +232,7 @@ function bestDay(P: PreparedInput, book: PlanBook, v: number, t: number, weekday
  * the same plan. Throws PlannerInputError naming the field on unusable input.
  */
 export function planSeason(input: PlannerInput): SeasonPlan {
-  return planSeasonKeeping(input, new Map())
+  return runPlannerSteps(planSeasonSteps(input))
 }
 
 /**
@@ -239,6 +240,16 @@ export function planSeason(input: PlannerInput): SeasonPlan {
  * technician): re-planning a plan that still works moves little. For replanDateRange.
  */
 export function planSeasonKeeping(input: PlannerInput, current: ReadonlyMap<string, { day: string, technicianId: string }>): SeasonPlan {
+  return runPlannerSteps(planSeasonKeepingSteps(input, current))
+}
+
+/** planSeason one step at a time: yields its progress every few hundred visits, returns the plan. */
+export function planSeasonSteps(input: PlannerInput): PlannerSteps<SeasonPlan> {
+  return planSeasonKeepingSteps(input, new Map())
+}
+
+/** planSeasonKeeping one step at a time (see planSeasonSteps). */
+export function* planSeasonKeepingSteps(input: PlannerInput, current: ReadonlyMap<string, { day: string, technicianId: string }>): PlannerSteps<SeasonPlan> {
   const P = preparePlannerInput(input)
   const stayTech = new Int32Array(P.visits.length).fill(-1)
   const stayDay = new Int32Array(P.visits.length).fill(-1)
@@ -250,6 +261,9 @@ export function planSeasonKeeping(input: PlannerInput, current: ReadonlyMap<stri
       stayDay[i] = plannerDayNumber(c.day) - P.firstDay
     }
   })
+  let toPlace = 0
+  for (let v = 0; v < P.visits.length; v++) if (P.lockedTech[v]! < 0) toPlace++
+  yield { stage: 'planning', done: 0, total: toPlace }
   const book = new PlanBook(P)
   book.placeLocked()
   const customers = customerItems(P)
@@ -303,17 +317,20 @@ export function planSeasonKeeping(input: PlannerInput, current: ReadonlyMap<stri
   }
 
   const unplaced: number[] = []
-  for (const v of order) {
+  for (const [k, v] of order.entries()) {
+    if (k > 0 && k % PLANNER_STEP_VISITS === 0) yield { stage: 'planning', done: k, total: toPlace }
     const got = choose(v)
     if (got) book.place(v, got.t, got.pick.d, got.pick.at)
     else unplaced.push(v)
   }
+  yield { stage: 'planning', done: toPlace, total: toPlace }
 
   // Repair: make room for a visit that found none by moving one visit off a day of its window
   // to another day of that visit's own window. Bounded work, so an overloaded season stays fast.
   let budget = PLANNER_WEIGHTS.repairBudget
-  for (const v of unplaced) {
+  for (const [k, v] of unplaced.entries()) {
     if (budget <= 0) break
+    if (k % PLANNER_STEP_VISITS === 0) yield { stage: 'repairing', done: toPlace, total: toPlace }
     const c = P.customerOf[v]!
     const techs = [techOfCustomer[c]!, ...others(c, techOfCustomer[c]!).slice(0, PLANNER_WEIGHTS.repairTechnicians)].filter(t => t >= 0)
     let done = false

@@ -2,7 +2,8 @@
 // unplaced whose window reaches into it) were planned again. Nothing is applied: the caller gets
 // the diff and decides.
 import { isLocalDate, type LocalDate } from '../recurrence'
-import { planSeasonKeeping } from './plan-season'
+import { planSeasonKeepingSteps } from './plan-season'
+import { runPlannerSteps, type PlannerSteps } from './steps'
 import { PlannerInputError, type PlannerInput, type PlannerMove, type PlannerVisit, type ReplanPreview } from './types'
 
 export interface CurrentPlacement {
@@ -21,6 +22,11 @@ export interface CurrentPlacement {
  * current day when that is about as good (PLANNER_WEIGHTS.stayKm). Inputs are not changed.
  */
 export function replanDateRange(input: PlannerInput, current: readonly CurrentPlacement[], range: { from: LocalDate, to: LocalDate }): ReplanPreview {
+  return runPlannerSteps(replanDateRangeSteps(input, current, range))
+}
+
+/** replanDateRange one step at a time: yields the planner's progress, returns the preview. */
+export function* replanDateRangeSteps(input: PlannerInput, current: readonly CurrentPlacement[], range: { from: LocalDate, to: LocalDate }): PlannerSteps<ReplanPreview> {
   if (!range || typeof range.from !== 'string' || !isLocalDate(range.from)) throw new PlannerInputError('range.from', 'must be a date as YYYY-MM-DD')
   if (typeof range.to !== 'string' || !isLocalDate(range.to)) throw new PlannerInputError('range.to', 'must be a date as YYYY-MM-DD')
   if (range.to < range.from) throw new PlannerInputError('range.to', 'the range ends before it starts')
@@ -73,7 +79,7 @@ export function replanDateRange(input: PlannerInput, current: readonly CurrentPl
   }
 
   const keep = new Map([...now].filter(([id]) => replanned.has(id)).map(([id, c]) => [id, { day: c.day, technicianId: c.technicianId }]))
-  const plan = planSeasonKeeping({ ...input, visits, previousAssignments: { ...previous, ...input.previousAssignments } }, keep)
+  const plan = yield* planSeasonKeepingSteps({ ...input, visits, previousAssignments: { ...previous, ...input.previousAssignments } }, keep)
   const placedNow = new Map(plan.placed.map(p => [p.visitId, p]))
   const why = new Map(plan.unplaced.map(u => [u.visitId, u.reason]))
   const moves: PlannerMove[] = []
