@@ -70,7 +70,7 @@ async function loadReplan(tx: Tx, companyId: string, range: Range) {
     })
     if (!locked && r.technicianId) current.push({ visitId: r.id, day: r.day, technicianId: r.technicianId })
   }
-  const token = createHash('sha256').update(JSON.stringify([range.from, range.to, closed, technicians.map(t => [t.id, t.capacityMinutes]), rows.map(r => [r.id, r.day, r.technicianId, r.sequence, r.unplacedReason])])).digest('hex').slice(0, 40)
+  const token = createHash('sha256').update(JSON.stringify([range.from, range.to, closed, technicians.map(t => [t.id, t.capacityMinutes, t.workingDays, t.daysOff ?? [], t.home]), rows.map(r => [r.id, r.day, r.technicianId, r.sequence, r.unplacedReason])])).digest('hex').slice(0, 40)
   return { company: company!, technicians, closed, plannerVisits, current, token }
 }
 

@@ -129,6 +129,13 @@ describe('technicians\' working days and days off', () => {
     const again = await api('/api/schedule/replan', { method: 'POST', token: owner, body: range })
     for (const m of again.body.moves as Array<{ to: { day: string } | null }>) if (m.to) expect(m.to.day).not.toBe(busy.day)
 
+    // A day off added after a preview, even on a day with none of their visits, makes that preview stale.
+    const quiet = [...Array(30).keys()].map(i => `${year}-04-${String(i + 1).padStart(2, '0')}`)
+      .find(d => [1, 2, 3].includes(weekday(d)) && !after.some(v => v.day === d && v.technician_id === wrenId) && d !== busy.day)!
+    await dayOff(wrenId, { from: quiet, reason: 'Dentist' })
+    const stale = await api('/api/schedule/replan', { method: 'POST', token: owner, body: { ...range, apply: true, token: again.body.token } })
+    expect(stale.status, JSON.stringify(stale.body)).toBe(409)
+
     // Wren stops working on one of the weekdays that holds their visits: those visits lose them, with the reason, and are listed.
     const mine = (await pool.query(`select id, extract(isodow from scheduled_on)::int as wd from visits where technician_id = $1 and status = 'scheduled'`, [wrenId])).rows as Array<{ id: string, wd: number }>
     expect(mine.length).toBeGreaterThan(0)
