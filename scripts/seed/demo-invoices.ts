@@ -3,7 +3,7 @@
 // overdue at different reminder stages. Numbers run in issue-date order, gapless per year.
 import { and, asc, eq, inArray, lte } from 'drizzle-orm'
 import { monthlyPeriods } from '../../shared/utils/billing'
-import { addDays, localToday } from '../../shared/utils/recurrence'
+import { addDays, localToday } from '../../shared/utils/company-time'
 import { companies, contracts, invoices, plans, visits } from '../../server/db/schema'
 import { monthInvoice, termInvoice, visitInvoice } from '../../server/services/billing-run'
 import { finalizeInTx, insertDraft, type NewInvoice } from '../../server/services/invoices'

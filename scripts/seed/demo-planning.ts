@@ -12,7 +12,8 @@ import { windowVisitDates } from '../../server/services/visit-generation'
 import type { Tx } from '../../server/utils/db'
 import { dayLoad } from '../../shared/utils/day-load'
 import { planSeason, type PlannerTechnician, type PlannerVisit, type SeasonPlan } from '../../shared/utils/planner/index'
-import { localTimeToInstant, type LocalDate } from '../../shared/utils/recurrence'
+import { localTimeToInstant } from '../../shared/utils/recurrence'
+import type { LocalDate } from '../../shared/utils/company-time'
 
 export interface DemoPlanningCompany {
   id: string

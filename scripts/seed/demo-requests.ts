@@ -1,5 +1,5 @@
 // Demo service requests waiting in the owner's inbox (invented), so the requests screen has work.
-import { addDays, localToday } from '../../shared/utils/recurrence'
+import { addDays, localToday } from '../../shared/utils/company-time'
 import { companies, serviceRequests } from '../../server/db/schema'
 import type { Tx } from '../../server/utils/db'
 import { eq } from 'drizzle-orm'

@@ -1,7 +1,8 @@
 // A retest visit booked from an alert in one click: at the feature's site, on the company's next
 // working day (its working week and closed days), by the technician who last visited the site.
 import { and, asc, desc, eq, gte, ne, sql } from 'drizzle-orm'
-import { addDays, localTimeToInstant, localToday, nearestWorkingDay } from '../../shared/utils/recurrence'
+import { localTimeToInstant, nearestWorkingDay } from '../../shared/utils/recurrence'
+import { addDays, localToday } from '../../shared/utils/company-time'
 import { alerts, closedDays, companies, users, visits, waterFeatures } from '../db/schema'
 import type { SessionUser } from '../utils/auth'
 import { useDb } from '../utils/db'

@@ -1,5 +1,5 @@
 import { and, asc, count, desc, eq, gt, inArray, isNull, lt, ne, sql, type SQL } from 'drizzle-orm'
-import { addDays, localToday } from '../../shared/utils/recurrence'
+import { addDays, localToday } from '../../shared/utils/company-time'
 import { dailyWaterLossMm, EVAPORATION_ALLOWANCE_MM_PER_DAY, topUpLitresToMm, waterLossStatus } from '../../shared/utils/water-chemistry'
 import { formatNumber, formatQuantity, toDisplay, unitFor, type UnitSystem } from '../../shared/utils/water/format'
 import { formatParameter } from '../../shared/utils/water/parameters'

@@ -1,6 +1,6 @@
 import { and, asc, eq, gte } from 'drizzle-orm'
 import type { ClosedDaysInput, CompanyUpdateInput } from '../../shared/schemas/company'
-import { localToday } from '../../shared/utils/recurrence'
+import { localToday } from '../../shared/utils/company-time'
 import { closedDays, companies, contracts, users } from '../db/schema'
 import type { SessionUser } from '../utils/auth'
 import { useDb, type Tx } from '../utils/db'

@@ -2,7 +2,7 @@ import { and, asc, count, desc, eq, getTableColumns, gte, inArray, isNull, lte, 
 import type { CustomerReadingInput, PreferencesInput } from '../../shared/schemas/portal'
 import type { Parameter } from '../../shared/types/water'
 import { adviceFor } from '../../shared/utils/advice'
-import { addDays, localToday } from '../../shared/utils/recurrence'
+import { addDays, localToday } from '../../shared/utils/company-time'
 import { PARAMETER_LIST } from '../../shared/utils/water/parameters'
 import { companies, customerContacts, doses, outbox, photos, products, readings, sites, users, visits, waterFeatures } from '../db/schema'
 import { ownCustomerId, type SessionUser } from '../utils/auth'

@@ -1,6 +1,6 @@
 import { and, eq, ne, sql } from 'drizzle-orm'
 import { RECEIVABLE_BUCKETS, receivableBucket, daysBetween } from '../../shared/utils/billing'
-import { localToday } from '../../shared/utils/recurrence'
+import { localToday } from '../../shared/utils/company-time'
 import { revenueFigures, type RevenueContract } from '../../shared/utils/revenue'
 import { companies, contracts, invoices, plans, visits } from '../db/schema'
 import { useDb } from '../utils/db'

@@ -5,7 +5,7 @@
 // A renewed contract's customer keeps the technician who did most of their last term's visits.
 import { and, asc, count, desc, eq, gte, inArray, isNotNull, lte, notInArray, sql } from 'drizzle-orm'
 import { planSeason, type PlannerTechnician, type PlannerVisit } from '../../shared/utils/planner/index'
-import type { LocalDate } from '../../shared/utils/recurrence'
+import type { LocalDate } from '../../shared/utils/company-time'
 import { sites, staffProfiles, users, visits } from '../db/schema'
 import type { Tx } from '../utils/db'
 import { daysOffByTechnician } from './technician-days'

@@ -4,8 +4,7 @@
 // in the board's tray and "plan these weeks again" places them with someone who is working.
 import { and, asc, eq, gte, inArray, lte, sql, type SQL } from 'drizzle-orm'
 import type { DayOffInput } from '../../shared/schemas/technician-days'
-import { addDays, formatLocalDate } from '../../shared/utils/company-time'
-import type { LocalDate } from '../../shared/utils/recurrence'
+import { addDays, formatLocalDate, type LocalDate } from '../../shared/utils/company-time'
 import { customers, technicianDaysOff, users, visits } from '../db/schema'
 import type { SessionUser } from '../utils/auth'
 import { useDb, type Tx } from '../utils/db'

@@ -1,5 +1,5 @@
 import { and, asc, eq, inArray, ne } from 'drizzle-orm'
-import { localToday } from '../../shared/utils/recurrence'
+import { localToday } from '../../shared/utils/company-time'
 import { orderStops, routeLegs } from '../../shared/utils/route-order'
 import { companies, customers, sites, staffProfiles, users, visits } from '../db/schema'
 import type { SessionUser } from '../utils/auth'

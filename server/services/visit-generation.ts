@@ -1,5 +1,6 @@
 import { and, asc, eq, gte, inArray, sql } from 'drizzle-orm'
-import { localTimeToInstant, localToday, nearestWorkingDay, reconcileVisits, type LocalDate, type PlannedVisit, type WorkCalendar } from '../../shared/utils/recurrence'
+import { localTimeToInstant, nearestWorkingDay, reconcileVisits, type PlannedVisit, type WorkCalendar } from '../../shared/utils/recurrence'
+import { localToday, type LocalDate } from '../../shared/utils/company-time'
 import { expandVisitSchedule } from '../../shared/utils/visit-windows'
 import { templateVisitSchedule } from '../../shared/schemas/visit-schedule'
 import { closedDays, companies, contractFeatures, contracts, planVisitTemplates, visits, waterFeatures } from '../db/schema'

@@ -62,7 +62,6 @@ export function formatTaxRate(basisPoints: number): string {
 const d = (iso: LocalDate) => DateTime.fromISO(iso, { zone: 'utc' })
 
 // The date `months` after a date, kept to the month's end (Jan 31 + 1 → Feb 28): the company's calendar.
-export { addMonths }
 
 export interface BillingPeriod { start: LocalDate, end: LocalDate }
 

@@ -2,13 +2,10 @@
 // reconciliation of generated visits with what is already on the schedule. Pure: no I/O.
 import { DateTime } from 'luxon'
 import * as rruleModule from 'rrule'
-import { addDays, localToday, type LocalDate } from './company-time'
+import type { LocalDate } from './company-time'
 
 // rrule ships ESM (bundlers, vitest) and a UMD build (plain Node): take RRule from either.
 const RRule = (rruleModule.RRule ?? (rruleModule as unknown as { default: typeof rruleModule }).default.RRule) as typeof rruleModule.RRule
-
-// The company's calendar lives in company-time; these stay importable from here.
-export { addDays, localToday, type LocalDate }
 
 export class RecurrenceRuleError extends RangeError {
   constructor(message: string) {

@@ -8,8 +8,8 @@
 // season is the window. The owner never sees the rule text: describeVisitSchedule() words it.
 //
 // Every export is auto-imported across the app and server, so the names are specific.
-import { monthName } from './company-time'
-import { addDays, expandVisitRule, isLocalDate, type LocalDate } from './recurrence'
+import { monthName, addDays, type LocalDate } from './company-time'
+import { expandVisitRule, isLocalDate } from './recurrence'
 
 /** A day of the year as 'MM-DD' (e.g. '04-01'); '02-29' means the last day of February. */
 export type MonthDay = string

@@ -1,10 +1,10 @@
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
 import {
-  addMonths, daysBetween, divRoundHalfAway, formatTaxRate, invoiceTotals, lineAmountMinor, monthlyPeriods, monthlyValueMinor,
+  daysBetween, divRoundHalfAway, formatTaxRate, invoiceTotals, lineAmountMinor, monthlyPeriods, monthlyValueMinor,
   receivableBucket, reminderStageFor,
 } from '../../shared/utils/billing'
-import { addDays } from '../../shared/utils/recurrence'
+import { addDays, addMonths } from '../../shared/utils/company-time'
 
 // Rounding rule: tax to the nearest cent, halves away from zero, once per invoice. Sales-tax
 // rules commonly round to the nearest cent with a half cent rounded up and let the seller round

@@ -1,6 +1,7 @@
 // Checks the planner's input (throwing PlannerInputError naming the field) and turns it into
 // compact arrays indexed by visit, technician and day number.
-import { isLocalDate, type LocalDate } from '../recurrence'
+import { isLocalDate } from '../recurrence'
+import type { LocalDate } from '../company-time'
 import { ROUTE_ASSUMPTIONS } from '../route-order'
 import { PlannerInputError, type PlannerInput, type PlannerTechnician, type PlannerVisit } from './types'
 

@@ -1,7 +1,8 @@
 // "Plan these weeks again": what would move if the visits placed in a date range (and those still
 // unplaced whose window reaches into it) were planned again. Nothing is applied: the caller gets
 // the diff and decides.
-import { isLocalDate, type LocalDate } from '../recurrence'
+import { isLocalDate } from '../recurrence'
+import type { LocalDate } from '../company-time'
 import { planSeasonKeepingSteps } from './plan-season'
 import { runPlannerSteps, type PlannerSteps } from './steps'
 import { PlannerInputError, type PlannerInput, type PlannerMove, type PlannerVisit, type ReplanPreview } from './types'

@@ -1,5 +1,5 @@
 // The planner's input and output shapes. Dates are company-local calendar dates (YYYY-MM-DD).
-import type { LocalDate } from '../recurrence'
+import type { LocalDate } from '../company-time'
 
 /** A visit to place: any day of its window, on a technician's working day with room. */
 export interface PlannerVisit {
