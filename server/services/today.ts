@@ -31,7 +31,7 @@ export async function technicianDay(actor: SessionUser, q: { date?: string, tech
     accessNotes: sites.accessNotes, gateCode: sites.gateCode, hazards: sites.hazards, hazardNotes: sites.hazardNotes,
   }).from(visits).innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
     .where(and(eq(visits.companyId, actor.companyId), eq(visits.technicianId, technicianId), eq(visits.scheduledOn, date), ne(visits.status, 'cancelled')))
-    .orderBy(asc(visits.startsAt)).limit(60)
+    .orderBy(asc(visits.startsAt), asc(visits.id)).limit(60)
 
   const home = tech.homeLatitude != null && tech.homeLongitude != null
     ? { lat: tech.homeLatitude, lon: tech.homeLongitude }
