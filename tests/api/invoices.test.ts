@@ -147,7 +147,7 @@ describe('invoices by hand', () => {
 })
 
 describe('invoice tenancy', () => {
-  it('customers see only their own invoices, never drafts; technicians see none', async () => {
+  it('customers see only their own invoices, never ones being prepared; technicians see none', async () => {
     const mine = await draft()
     const theirs = await draft(ashgroveCustomerId)
     await act(theirs.id, { action: 'issue' })
@@ -280,7 +280,7 @@ describe('paying online and the payment webhook', () => {
     expect(((await api('/api/overview', { token: owner })).body.paymentsToCheck as Array<{ id: string }>).some(p => p.id === short.id)).toBe(false)
   })
 
-  it('the customer pays through the provider\'s page: a declined card leaves it open, a good card pays it', async () => {
+  it('the customer pays through the provider\'s page: a declined card leaves it due, a good card pays it', async () => {
     const inv = await openInvoice()
     const pay = await api(`/api/invoices/${inv.id}/pay`, { method: 'POST', token: priya })
     expect(pay.status, JSON.stringify(pay.body)).toBe(200)
@@ -305,7 +305,7 @@ describe('paying online and the payment webhook', () => {
     expect((await api(`/api/invoices/${inv.id}/pay`, { method: 'POST', token: priya })).status).toBe(409)
   })
 
-  it('voiding an invoice the provider holds voids it there too; with the provider down nothing changes (503)', async () => {
+  it('cancelling an invoice the provider holds closes it there too; with the provider down nothing changes (503)', async () => {
     const inv = await openInvoice()
     await api(`/api/invoices/${inv.id}/pay`, { method: 'POST', token: priya })
     const ref = (await row(inv.id)).providerInvoiceId!
