@@ -2,7 +2,7 @@ import type { Config } from 'tailwindcss'
 
 // Rillbook's own palette: deep pond teal, reed green, clay for attention, a warm stone neutral.
 export default {
-  content: ['./app/**/*.{vue,ts}'],
+  content: ['./app/**/*.{vue,ts}', './shared/types/billing.ts'],
   theme: {
     extend: {
       fontFamily: {

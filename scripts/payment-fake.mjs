@@ -3,8 +3,10 @@
 // part of the provider's REST API (/v1) that Rillbook uses, so the provider's official Node SDK can
 // be pointed at it with { host: '127.0.0.1', port, protocol: 'http', maxNetworkRetries: 0 }:
 // customers, draft invoices with invoice items, finalize / send / pay / void / mark_uncollectible,
-// Idempotency-Key replays, and signed webhook events. It also serves the hosted payment page that
-// an invoice's hosted_invoice_url points at (GET/POST /pay/<invoice id>) and a few test controls
+// Idempotency-Key replays, and signed webhook events. It mimics the provider, so it speaks the
+// provider's own invoice states and events (draft, open, void, uncollectible…): it is on the
+// payments adapter's side, like server/utils/payment-states.ts, which maps them to ours. It also
+// serves the hosted payment page that an invoice's hosted_invoice_url points at (GET/POST /pay/<invoice id>) and a few test controls
 // under /__fake/ (events, redelivery, outage, reset, health). Nothing leaves the machine except
 // webhook POSTs to the configured URL.
 //   node scripts/payment-fake.mjs --port 12111 --dir .data/payments \

@@ -120,7 +120,7 @@ async function main() {
              round((random() * 0.2)::numeric, 2), round((60 + random() * 120)::numeric, 0), case when random() < 0.05 then 'watch' else 'ok' end, '[]'::jsonb
       from water_features f cross join generate_series(0, $3::int - 1) k where f.company_id = $1`, [companyId, todayDate, READINGS_PER_FEATURE])
     await step('invoices', `insert into invoices (company_id, customer_id, contract_id, source, billing_key, status, currency, tax_rate_bp, subtotal_minor, tax_minor, total_minor, amount_paid_minor, issue_date, due_date, period_start, period_end, sent_at, paid_at, payment_method, provider_synced_at)
-      select x.company_id, x.customer_id, x.contract_id, x.source::invoice_source, x.key, (case when x.issue < $2::date - 45 then 'paid' else 'open' end)::invoice_status, 'USD', 725, x.price,
+      select x.company_id, x.customer_id, x.contract_id, x.source::invoice_source, x.key, (case when x.issue < $2::date - 45 then 'paid' else 'due' end)::invoice_status, 'USD', 725, x.price,
              round(x.price * 0.0725)::int, x.price + round(x.price * 0.0725)::int, case when x.issue < $2::date - 45 then x.price + round(x.price * 0.0725)::int else 0 end,
              x.issue, x.issue + 30, x.pstart, x.pend, x.issue::timestamptz, case when x.issue < $2::date - 45 then (x.issue + 12)::timestamptz end, case when x.issue < $2::date - 45 then 'card' end, now()
       from (

@@ -1,5 +1,5 @@
 // Demo invoice history for the seed's own contracts: what the billing job would have raised up to
-// today (same billing keys, so the job never raises them again), mostly paid, some open, a few
+// today (same billing keys, so the job never raises them again), mostly paid, some due, a few
 // overdue at different reminder stages. Numbers run in issue-date order, gapless per year.
 import { and, asc, eq, inArray, lte } from 'drizzle-orm'
 import { monthlyPeriods } from '../../shared/utils/billing'
@@ -49,9 +49,9 @@ export async function seedInvoices(tx: Tx, companyId: string, contractIds: strin
     const [inv] = await tx.select({ dueDate: invoices.dueDate, total: invoices.totalMinor }).from(invoices).where(eq(invoices.id, id)).limit(1)
     const overdueDays = Math.round((Date.parse(today) - Date.parse(inv!.dueDate!)) / 86_400_000)
     const sentAt = new Date(`${issueDate}T14:00:00Z`)
-    // Recent ones are still open; every 9th older one (up to 100 days) is overdue, its reminders already sent.
-    const open = overdueDays < 0 || (i % 9 === 4 && overdueDays < 100)
-    if (open) {
+    // Recent ones are still due; every 9th older one (up to 100 days) is overdue, its reminders already sent.
+    const stillDue = overdueDays < 0 || (i % 9 === 4 && overdueDays < 100)
+    if (stillDue) {
       const stage = overdueDays >= 30 ? 3 : overdueDays >= 14 ? 2 : overdueDays >= 7 ? 1 : 0
       await tx.update(invoices).set({ sentAt, reminderStage: stage }).where(eq(invoices.id, id))
       continue

@@ -60,7 +60,7 @@ export function visitInvoice(c: BilledContract, v: { id: string, scheduledOn: st
 /**
  * The daily billing job: renews auto-renewing terms, ends finished ones, raises the invoices that
  * are due (yearly terms in advance, each month of a monthly contract, each finished per-visit
- * visit), opens and e-mails them, brings the payment provider's copies up to date and sends the
+ * visit), issues and e-mails them, brings the payment provider's copies up to date and sends the
  * overdue reminders (7, 14 and 30 days).
  *
  * Safe to repeat and to kill at any point: every unit of work is its own transaction, and what it
@@ -129,7 +129,7 @@ async function billingRun(opts: BillingRunOptions) {
       summary.ended += ended
     })
 
-    // 3. Raise what is due: one transaction per invoice makes, numbers, opens and e-mails it.
+    // 3. Raise what is due: one transaction per invoice makes, numbers, issues and e-mails it.
     const raise = async (n: NewInvoice) => {
       const id = await unit(n.billingKey!, () => db.transaction(async (tx) => {
         const created = await insertDraft(tx, n)
@@ -173,10 +173,10 @@ async function billingRun(opts: BillingRunOptions) {
       await raise(visitInvoice({ id: v.contractId!, companyId: company.id, customerId: v.customerId, currency: v.currency, planName: v.planName, priceMinor: v.priceMinor }, v))
     }
 
-    // 4. The provider's copies of open invoices that do not have one yet (or whose last try failed).
+    // 4. The provider's copies of due invoices that do not have one yet (or whose last try failed).
     if (paymentsConfigured()) {
       const unsynced = await db.select({ id: invoices.id }).from(invoices)
-        .where(and(eq(invoices.companyId, company.id), eq(invoices.status, 'open'), isNull(invoices.providerSyncedAt))).orderBy(asc(invoices.numberYear), asc(invoices.numberSeq))
+        .where(and(eq(invoices.companyId, company.id), eq(invoices.status, 'due'), isNull(invoices.providerSyncedAt))).orderBy(asc(invoices.numberYear), asc(invoices.numberSeq))
       for (const inv of unsynced) {
         const r = await syncInvoiceToProvider(inv.id)
         if (r.ok) {
@@ -194,14 +194,14 @@ async function billingRun(opts: BillingRunOptions) {
     // 5. Overdue reminders: the highest stage reached, once (a missed day does not send two at once).
     const firstReminder = addDays(today, -REMINDER_DAYS[0])
     const overdueRows = await db.select({ id: invoices.id, dueDate: invoices.dueDate, stage: invoices.reminderStage }).from(invoices)
-      .where(and(eq(invoices.companyId, company.id), eq(invoices.status, 'open'), lte(invoices.dueDate, firstReminder), lt(invoices.reminderStage, REMINDER_DAYS.length)))
+      .where(and(eq(invoices.companyId, company.id), eq(invoices.status, 'due'), lte(invoices.dueDate, firstReminder), lt(invoices.reminderStage, REMINDER_DAYS.length)))
       .orderBy(asc(invoices.dueDate), asc(invoices.id))
     for (const r of overdueRows) {
       const days = daysBetween(r.dueDate!, today)
       const stage = reminderStageFor(days)
       if (stage <= r.stage) continue
       const sent = await unit(`invoice ${r.id} reminder`, () => db.transaction(async (tx: Tx) => {
-        const [moved] = await tx.update(invoices).set({ reminderStage: stage }).where(and(eq(invoices.id, r.id), lt(invoices.reminderStage, stage), eq(invoices.status, 'open'))).returning({ id: invoices.id })
+        const [moved] = await tx.update(invoices).set({ reminderStage: stage }).where(and(eq(invoices.id, r.id), lt(invoices.reminderStage, stage), eq(invoices.status, 'due'))).returning({ id: invoices.id })
         if (!moved) return false
         await queueInvoiceMail(tx, r.id, 'reminder', `invoice:${r.id}:reminder:${stage}`, { daysOverdue: days })
         await recordAudit(tx, { action: 'invoice.reminder', companyId: company.id, subjectType: 'invoice', subjectId: r.id, detail: { stage, daysOverdue: days } })

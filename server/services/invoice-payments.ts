@@ -1,11 +1,12 @@
-import { and, asc, eq, inArray } from 'drizzle-orm'
+import { and, asc, eq } from 'drizzle-orm'
 import { customers, invoiceLines, invoices, paymentEvents } from '../db/schema'
 import { formatTaxRate } from '../../shared/utils/billing'
-import type { PaymentMismatch } from '../../shared/types/billing'
+import { INVOICE_AUDIT_ACTIONS, INVOICE_STATUS_LABELS, type PaymentMismatch } from '../../shared/types/billing'
 import type { SessionUser } from '../utils/auth'
 import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
-import { paymentsConfigured, publicAppUrl, usePayments, type Stripe } from '../utils/payments'
+import { closeOnProvider, paymentsConfigured, publicAppUrl, usePayments, type Stripe } from '../utils/payments'
+import { stateFromEvent, stateFromProvider, type ClosingState } from '../utils/payment-states'
 import { recordAudit } from './audit'
 import { loadInvoice, queueInvoiceMail } from './invoices'
 import { contactEmails } from './recipients'
@@ -21,7 +22,7 @@ function describe(err: unknown) {
 }
 
 /**
- * Makes the provider's copy of an open invoice: its customer (once per customer), the invoice with
+ * Makes the provider's copy of a due invoice: its customer (once per customer), the invoice with
  * its lines and the tax as one more line, finalized there so it has a hosted payment page. Each
  * step is saved as soon as it is done and each call has an idempotency key, so a run killed half
  * way picks up where it stopped without making anything twice. A failure is written on the
@@ -30,7 +31,7 @@ function describe(err: unknown) {
 export async function syncInvoiceToProvider(invoiceId: string): Promise<{ ok: true, url: string | null } | { ok: false, error: string }> {
   const db = useDb()
   const [inv] = await db.select().from(invoices).where(eq(invoices.id, invoiceId)).limit(1)
-  if (!inv || inv.status !== 'open') return { ok: true, url: inv?.providerHostedUrl ?? null }
+  if (!inv || inv.status !== 'due') return { ok: true, url: inv?.providerHostedUrl ?? null }
   if (inv.providerSyncedAt) return { ok: true, url: inv.providerHostedUrl }
   if (!paymentsConfigured()) return { ok: false, error: 'Online payments are not configured' }
   try {
@@ -54,7 +55,7 @@ export async function syncInvoiceToProvider(invoiceId: string): Promise<{ ok: tr
       await db.update(invoices).set({ providerInvoiceId: ref }).where(eq(invoices.id, inv.id))
     }
     let remote = await stripe.invoices.retrieve(ref)
-    if (remote.status === 'draft') {
+    if (stateFromProvider(remote.status) === 'preparing') {
       const lines = await db.select().from(invoiceLines).where(eq(invoiceLines.invoiceId, inv.id)).orderBy(asc(invoiceLines.position))
       for (const l of lines) {
         await stripe.invoiceItems.create({ customer: customerRef, invoice: ref, amount: l.amountMinor, currency: inv.currency.toLowerCase(), description: l.quantity === 1 ? l.description : `${l.description} (× ${l.quantity})` }, { idempotencyKey: key('line', l.id) })
@@ -64,7 +65,7 @@ export async function syncInvoiceToProvider(invoiceId: string): Promise<{ ok: tr
       }
       remote = await stripe.invoices.finalizeInvoice(ref, {}, { idempotencyKey: key('finalize', inv.id) })
     }
-    if (remote.amount_due !== inv.totalMinor - inv.amountPaidMinor && remote.status === 'open') {
+    if (remote.amount_due !== inv.totalMinor - inv.amountPaidMinor && stateFromProvider(remote.status) === 'due') {
       throw new Error(`The provider's copy asks for ${remote.amount_due} but the invoice is for ${inv.totalMinor - inv.amountPaidMinor}`)
     }
     await db.update(invoices).set({ providerHostedUrl: remote.hosted_invoice_url ?? null, providerSyncedAt: new Date(), providerError: null }).where(eq(invoices.id, inv.id))
@@ -78,34 +79,25 @@ export async function syncInvoiceToProvider(invoiceId: string): Promise<{ ok: tr
 }
 
 /**
- * Tells the provider about a void, a write-off or a payment taken offline, so its payment page
- * stops asking for money. Throws 503 when the provider cannot be reached (nothing is changed).
+ * Tells the provider about a cancellation, a write-off or a payment taken offline, so its payment
+ * page stops asking for money. Throws 503 when the provider cannot be reached (nothing is changed).
  */
-export async function mirrorOnProvider(inv: InvoiceRow, op: 'void' | 'mark_uncollectible' | 'pay_out_of_band') {
+export async function mirrorOnProvider(inv: InvoiceRow, to: ClosingState) {
   if (!inv.providerInvoiceId) return
   try {
-    const stripe = usePayments()
-    const remote = await stripe.invoices.retrieve(inv.providerInvoiceId)
-    if (remote.status === 'draft') {
-      // Never finalized there: nobody can pay it; remove the draft.
-      await stripe.invoices.del(inv.providerInvoiceId).catch(() => {})
-      await useDb().update(invoices).set({ providerInvoiceId: null }).where(eq(invoices.id, inv.id))
-      return
-    }
-    if (remote.status !== 'open') return
-    if (op === 'void') await stripe.invoices.voidInvoice(inv.providerInvoiceId, {}, { idempotencyKey: key('void', inv.id) })
-    else if (op === 'mark_uncollectible') await stripe.invoices.markUncollectible(inv.providerInvoiceId, {}, { idempotencyKey: key('uncollectible', inv.id) })
-    else await stripe.invoices.pay(inv.providerInvoiceId, { paid_out_of_band: true }, { idempotencyKey: key('paid-offline', inv.id) })
+    const r = await closeOnProvider(inv.providerInvoiceId, to, key(to, inv.id))
+    // Never issued there: nobody could pay it, and the provider's copy is gone.
+    if (r === 'removed') await useDb().update(invoices).set({ providerInvoiceId: null }).where(eq(invoices.id, inv.id))
   }
   catch (err) {
     throw httpError(503, `The payment service could not be reached, so nothing was changed; try again in a few minutes (${describe(err)})`)
   }
 }
 
-/** The provider's payment page for an open invoice of the caller's (made now when it is missing). */
+/** The provider's payment page for a due invoice of the caller's (made now when it is missing). */
 export async function paymentPageUrl(actor: SessionUser, invoiceId: string) {
   const inv = await loadInvoice(actor, invoiceId)
-  if (inv.status !== 'open') throw httpError(409, `This invoice is ${inv.status}; there is nothing to pay`)
+  if (inv.status !== 'due') throw httpError(409, `This invoice is ${INVOICE_STATUS_LABELS[inv.status].toLowerCase()}; there is nothing to pay`)
   const r = await syncInvoiceToProvider(inv.id)
   if (!r.ok || !r.url) throw httpError(503, 'Online payment is not available right now; try again in a few minutes or pay by cheque or bank transfer')
   return { url: r.url }
@@ -149,7 +141,7 @@ export async function applyPaymentEvent(event: Stripe.Event): Promise<{ outcome:
         if (inv.status === 'paid') return done('ignored: already paid', inv.id)
         // Our own "paid offline" told to the provider: the owner's action records it, not this event.
         if ((obj as { paid_out_of_band?: boolean }).paid_out_of_band) return done('ignored: paid offline, recorded by the owner', inv.id)
-        if (inv.status !== 'open') {
+        if (inv.status !== 'due') {
           await audit('invoice.paid_while_closed', { status: inv.status })
           return done(`ignored: invoice is ${inv.status}; refund or reopen it by hand`, inv.id)
         }
@@ -163,35 +155,34 @@ export async function applyPaymentEvent(event: Stripe.Event): Promise<{ outcome:
           const counted = paidCurrency === inv.currency && paid !== null && paid > 0 && paid < due ? paid : 0
           const mismatch: PaymentMismatch = { eventId: event.id, paidMinor: paid, paidCurrency, dueMinor: due, countedMinor: counted, at: new Date().toISOString() }
           await tx.update(invoices).set({ amountPaidMinor: inv.amountPaidMinor + counted, paymentMismatch: mismatch })
-            .where(and(eq(invoices.id, inv.id), eq(invoices.status, 'open')))
+            .where(and(eq(invoices.id, inv.id), eq(invoices.status, 'due')))
           await audit('invoice.paid_amount_mismatch', { paid, paidCurrency, due, counted })
-          return done('recorded: the amount paid does not match what is due; left open for the owner', inv.id)
+          return done('recorded: the amount paid does not match what is due; left due for the owner', inv.id)
         }
         const paidAt = obj.status_transitions?.paid_at ? new Date(obj.status_transitions.paid_at * 1000) : new Date()
         await tx.update(invoices).set({ status: 'paid', paidAt, amountPaidMinor: inv.totalMinor, paymentMethod: 'card', lastPaymentError: null })
-          .where(and(eq(invoices.id, inv.id), eq(invoices.status, 'open')))
+          .where(and(eq(invoices.id, inv.id), eq(invoices.status, 'due')))
         await queueInvoiceMail(tx, inv.id, 'receipt', `invoice:${inv.id}:receipt`)
         await audit('invoice.paid_online', { amount: obj.amount_paid })
         return done('applied', inv.id)
       }
       case 'invoice.payment_failed': {
-        if (inv.status !== 'open') return done(`ignored: invoice is ${inv.status}`, inv.id)
+        if (inv.status !== 'due') return done(`ignored: invoice is ${inv.status}`, inv.id)
         const message = obj.last_payment_error?.message ?? 'The payment did not go through'
         await tx.update(invoices).set({ lastPaymentError: message }).where(eq(invoices.id, inv.id))
         await audit('invoice.payment_failed', { message })
         return done('applied', inv.id)
       }
-      case 'invoice.voided':
-      case 'invoice.marked_uncollectible': {
-        if (inv.status !== 'open') return done(`ignored: invoice is ${inv.status}`, inv.id)
+      default: {
+        const to = stateFromEvent(event.type)
+        if (to !== 'cancelled' && to !== 'written_off') return done('ignored: not used', inv.id)
+        if (inv.status !== 'due') return done(`ignored: invoice is ${inv.status}`, inv.id)
         const now = new Date()
-        await tx.update(invoices).set(event.type === 'invoice.voided' ? { status: 'void', voidedAt: now } : { status: 'uncollectible', uncollectibleAt: now })
-          .where(and(eq(invoices.id, inv.id), inArray(invoices.status, ['open'])))
-        await audit(event.type === 'invoice.voided' ? 'invoice.void' : 'invoice.mark_uncollectible', { by: 'payment provider' })
+        await tx.update(invoices).set(to === 'cancelled' ? { status: to, cancelledAt: now } : { status: to, writtenOffAt: now })
+          .where(and(eq(invoices.id, inv.id), eq(invoices.status, 'due')))
+        await audit(to === 'cancelled' ? INVOICE_AUDIT_ACTIONS.cancel : INVOICE_AUDIT_ACTIONS.write_off, { by: 'payment provider' })
         return done('applied', inv.id)
       }
-      default:
-        return done('ignored: not used', inv.id)
     }
   })
 }

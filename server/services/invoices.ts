@@ -1,6 +1,6 @@
-import { and, asc, count, desc, eq, ilike, lt, or, sql, type SQL } from 'drizzle-orm'
+import { and, asc, count, desc, eq, ilike, lt, ne, or, sql, type SQL } from 'drizzle-orm'
 import type { InvoiceCreateInput, InvoiceLineInput, InvoiceListQuery, InvoiceUpdateInput } from '../../shared/schemas/billing'
-import { PAYMENT_METHOD_LABELS, type InvoiceDocument, type InvoiceSource } from '../../shared/types/billing'
+import { INVOICE_STATUS_LABELS, PAYMENT_METHOD_LABELS, type InvoiceDocument, type InvoiceSource } from '../../shared/types/billing'
 import { addDays, formatLocalDate, localToday } from '../../shared/utils/company-time'
 import { MONEY_MAX_MINOR } from '../../shared/schemas/fields'
 import { formatTaxRate, invoiceTotals } from '../../shared/utils/billing'
@@ -19,15 +19,15 @@ import { contactEmails } from './recipients'
 type Db = Database | Tx
 type InvoiceRow = typeof invoices.$inferSelect
 
-/** WHERE conditions that keep a caller inside their tenancy; customers never see drafts. */
+/** WHERE conditions that keep a caller inside their tenancy; customers never see invoices being prepared. */
 function scope(actor: SessionUser): SQL[] {
   const where: SQL[] = [eq(invoices.companyId, actor.companyId)]
   const own = ownCustomerId(actor)
-  if (own) where.push(eq(invoices.customerId, own), sql`${invoices.status} <> 'draft'`)
+  if (own) where.push(eq(invoices.customerId, own), ne(invoices.status, 'preparing'))
   return where
 }
 
-const overdue = (today: string) => and(eq(invoices.status, 'open'), lt(invoices.dueDate, today))
+const overdue = (today: string) => and(eq(invoices.status, 'due'), lt(invoices.dueDate, today))
 
 const listColumns = {
   id: invoices.id, number: invoices.number, status: invoices.status, source: invoices.source,
@@ -58,7 +58,7 @@ function listWhere(actor: SessionUser, q: Omit<InvoiceListQuery, 'page' | 'pageS
 function listOrder(q: Pick<InvoiceListQuery, 'sort' | 'dir'>) {
   const col = { number: invoices.number, issueDate: invoices.issueDate, dueDate: invoices.dueDate, total: invoices.totalMinor, status: invoices.status, customer: customers.name }[q.sort]
   const dir = q.dir === 'desc' ? desc : asc
-  // Plain column order so the (company, column) indexes serve it; drafts (no number or dates
+  // Plain column order so the (company, column) indexes serve it; invoices being prepared (no number or dates
   // yet) come first when sorting newest first, last when oldest first.
   return [dir(col), desc(invoices.numberYear), desc(invoices.numberSeq), asc(invoices.id)]
 }
@@ -67,7 +67,7 @@ export async function listInvoices(actor: SessionUser, q: InvoiceListQuery) {
   const db = useDb()
   const today = await companyToday(actor.companyId)
   const cond = listWhere(actor, q, today)
-  const sumColumns = { currency: invoices.currency, totalMinor: sql<number>`coalesce(sum(${invoices.totalMinor}), 0)::bigint`, dueMinor: sql<number>`coalesce(sum(case when ${invoices.status} = 'open' then ${invoices.totalMinor} - ${invoices.amountPaidMinor} else 0 end), 0)::bigint` }
+  const sumColumns = { currency: invoices.currency, totalMinor: sql<number>`coalesce(sum(${invoices.totalMinor}), 0)::bigint`, dueMinor: sql<number>`coalesce(sum(case when ${invoices.status} = 'due' then ${invoices.totalMinor} - ${invoices.amountPaidMinor} else 0 end), 0)::bigint` }
   // Counting and summing need the customer join only when searching by name.
   const countQuery = db.select({ n: count() }).from(invoices).$dynamic()
   const sumQuery = db.select(sumColumns).from(invoices).$dynamic()
@@ -80,7 +80,7 @@ export async function listInvoices(actor: SessionUser, q: InvoiceListQuery) {
     sumQuery.where(cond).groupBy(invoices.currency),
   ])
   return {
-    rows: rows.map(r => ({ ...r, overdue: r.status === 'open' && r.dueDate != null && r.dueDate < today })),
+    rows: rows.map(r => ({ ...r, overdue: r.status === 'due' && r.dueDate != null && r.dueDate < today })),
     total: total?.n ?? 0, page: q.page, pageSize: q.pageSize, today,
     sums: totals.map(t => ({ currency: t.currency, totalMinor: Number(t.totalMinor), dueMinor: Number(t.dueMinor) })),
   }
@@ -107,9 +107,9 @@ export async function exportInvoicesCsv(actor: SessionUser, q: Omit<InvoiceListQ
   const lines = [EXPORT_COLUMNS.join(',')]
   for (const r of rows) {
     lines.push([
-      r.number, r.status, r.customerName, r.issueDate, r.dueDate, r.periodStart, r.periodEnd, r.currency,
+      r.number, INVOICE_STATUS_LABELS[r.status], r.customerName, r.issueDate, r.dueDate, r.periodStart, r.periodEnd, r.currency,
       decimal(r.subtotalMinor), decimal(r.taxMinor), decimal(r.totalMinor), decimal(r.amountPaidMinor),
-      decimal(r.status === 'open' ? r.totalMinor - r.amountPaidMinor : 0), r.paidAt?.toISOString() ?? '', r.paymentMethod ?? '',
+      decimal(r.status === 'due' ? r.totalMinor - r.amountPaidMinor : 0), r.paidAt?.toISOString() ?? '', r.paymentMethod ?? '',
     ].map(csvCell).join(','))
   }
   return `${lines.join('\r\n')}\r\n`
@@ -141,7 +141,7 @@ export async function invoiceDocument(inv: InvoiceRow, db: Db = useDb(), preload
     customer: { name: cu!.name, addressLines: [cu!.billingLine1, cu!.billingLine2, cityLine].filter(Boolean) },
     lines: lines.map(l => ({ description: l.description, quantity: l.quantity, unitPriceMinor: l.unitPriceMinor, amountMinor: l.amountMinor, taxable: l.taxable })),
     subtotalMinor: inv.subtotalMinor, taxRateBasisPoints: inv.taxRateBasisPoints, taxMinor: inv.taxMinor, totalMinor: inv.totalMinor,
-    amountPaidMinor: inv.amountPaidMinor, amountDueMinor: inv.status === 'open' ? inv.totalMinor - inv.amountPaidMinor : 0,
+    amountPaidMinor: inv.amountPaidMinor, amountDueMinor: inv.status === 'due' ? inv.totalMinor - inv.amountPaidMinor : 0,
     paidAt: inv.paidAt ? localToday(c!.timeZone, inv.paidAt) : null, paymentNote: paidNote, notes: inv.notes,
   }
 }
@@ -161,15 +161,15 @@ export async function getInvoice(actor: SessionUser, id: string) {
     contract: contract ?? null, currency: inv.currency, issueDate: inv.issueDate, dueDate: inv.dueDate, periodStart: inv.periodStart, periodEnd: inv.periodEnd,
     subtotalMinor: inv.subtotalMinor, taxRateBasisPoints: inv.taxRateBasisPoints, taxMinor: inv.taxMinor, totalMinor: inv.totalMinor,
     amountPaidMinor: inv.amountPaidMinor, amountDueMinor: document.amountDueMinor, notes: inv.notes, lines,
-    sentAt: inv.sentAt, paidAt: inv.paidAt, voidedAt: inv.voidedAt, uncollectibleAt: inv.uncollectibleAt,
+    sentAt: inv.sentAt, paidAt: inv.paidAt, cancelledAt: inv.cancelledAt, writtenOffAt: inv.writtenOffAt,
     paymentMethod: inv.paymentMethod, paymentReference: inv.paymentReference, lastPaymentError: inv.lastPaymentError,
-    overdue: inv.status === 'open' && inv.dueDate != null && inv.dueDate < today, today, document,
+    overdue: inv.status === 'due' && inv.dueDate != null && inv.dueDate < today, today, document,
   }
   if (!isStaff(actor)) return { ...base, staff: null }
-  return { ...base, staff: { billingKey: inv.billingKey, reminderStage: inv.reminderStage, providerInvoiceId: inv.providerInvoiceId, providerSyncedAt: inv.providerSyncedAt, providerError: inv.providerError, paymentMismatch: inv.paymentMismatch, finalizedAt: inv.finalizedAt } }
+  return { ...base, staff: { billingKey: inv.billingKey, reminderStage: inv.reminderStage, providerInvoiceId: inv.providerInvoiceId, providerSyncedAt: inv.providerSyncedAt, providerError: inv.providerError, paymentMismatch: inv.paymentMismatch, issuedAt: inv.finalizedAt } }
 }
 
-/** Replaces a draft's lines and recomputes its totals from them (tax rounded once; see shared/utils/billing). */
+/** Replaces the lines of an invoice being prepared and recomputes its totals from them (tax rounded once; see shared/utils/billing). */
 export async function writeLines(tx: Tx, invoiceId: string, taxRateBasisPoints: number, input: readonly InvoiceLineInput[]) {
   const totals = invoiceTotals(input, taxRateBasisPoints)
   const amounts = [totals.subtotalMinor, totals.taxMinor, totals.totalMinor, ...totals.lines.map(l => l.amountMinor)]
@@ -217,14 +217,14 @@ export async function insertDraft(tx: Tx, n: NewInvoice): Promise<string | null>
 }
 
 /**
- * Opens a draft: takes the next number of the issue year from the company's counter (its row lock
- * makes numbers gapless: a rolled-back finalize gives its number back), sets the issue and due
+ * Issues an invoice being prepared: takes the next number of the issue year from the company's counter (its row lock
+ * makes numbers gapless: a rolled-back issue gives its number back), sets the issue and due
  * dates from the payment terms. Inside the caller's transaction.
  */
 export async function finalizeInTx(tx: Tx, invoiceId: string, today?: string) {
   const [inv] = await tx.select().from(invoices).where(eq(invoices.id, invoiceId)).for('update').limit(1)
   if (!inv) throw httpError(404, 'No such invoice')
-  if (inv.status !== 'draft') throw httpError(409, `This invoice is ${inv.status}; only a draft can be finalized`)
+  if (inv.status !== 'preparing') throw httpError(409, `This invoice is ${INVOICE_STATUS_LABELS[inv.status].toLowerCase()}; only one being prepared can be issued`)
   if (inv.totalMinor < 0) throw httpError(400, 'Invalid body: lines — the total cannot be below zero', { fields: { lines: 'The total cannot be below zero' } })
   const [{ n }] = await tx.select({ n: count() }).from(invoiceLines).where(eq(invoiceLines.invoiceId, invoiceId)) as [{ n: number }]
   if (n === 0) throw httpError(400, 'Invalid body: lines — an invoice needs at least one line', { fields: { lines: 'An invoice needs at least one line' } })
@@ -236,7 +236,7 @@ export async function finalizeInTx(tx: Tx, invoiceId: string, today?: string) {
     .returning({ seq: invoiceCounters.lastSeq })
   const number = `${year}-${String(counter!.seq).padStart(4, '0')}`
   await tx.update(invoices).set({
-    status: 'open', number, numberYear: year, numberSeq: counter!.seq, issueDate, dueDate: addDays(issueDate, c!.terms), finalizedAt: new Date(),
+    status: 'due', number, numberYear: year, numberSeq: counter!.seq, issueDate, dueDate: addDays(issueDate, c!.terms), finalizedAt: new Date(),
   }).where(eq(invoices.id, invoiceId))
   return { number, issueDate }
 }
@@ -260,7 +260,7 @@ export async function queueInvoiceMail(tx: Tx, invoiceId: string, kind: MailKind
   }[kind]
   const intro = {
     invoice: `Here is invoice ${inv.number} for ${money(doc.totalMinor)}, due on ${fmtDate(inv.dueDate!)}.`,
-    reminder: `Invoice ${inv.number} was due on ${fmtDate(inv.dueDate!)} and ${money(doc.amountDueMinor)} is still open. If you have paid it already, thank you and please ignore this reminder.`,
+    reminder: `Invoice ${inv.number} was due on ${fmtDate(inv.dueDate!)} and ${money(doc.amountDueMinor)} is still unpaid. If you have paid it already, thank you and please ignore this reminder.`,
     receipt: `We received your payment of ${money(inv.amountPaidMinor)} for invoice ${inv.number}${doc.paymentNote ? ` (${doc.paymentNote})` : ''}. Thank you.`,
   }[kind]
   const lineText = doc.lines.map(l => `  ${l.description} — ${money(l.amountMinor)}`)
@@ -276,7 +276,7 @@ export async function queueInvoiceMail(tx: Tx, invoiceId: string, kind: MailKind
   return enqueueMail(tx, { companyId: inv.companyId, dedupeKey, to, subject, html, text })
 }
 
-/** Marks an open invoice sent and queues its e-mail; `dedupeKey` keeps a retried run from sending twice. */
+/** Marks a due invoice sent and queues its e-mail; `dedupeKey` keeps a retried run from sending twice. */
 export async function sendInTx(tx: Tx, invoiceId: string, dedupeKey: string) {
   const queued = await queueInvoiceMail(tx, invoiceId, 'invoice', dedupeKey)
   await tx.update(invoices).set({ sentAt: new Date() }).where(eq(invoices.id, invoiceId))
@@ -307,7 +307,7 @@ export async function updateInvoice(actor: SessionUser, id: string, input: Invoi
   await useDb().transaction(async (tx) => {
     const [inv] = await tx.select().from(invoices).where(and(eq(invoices.id, id), ...scope(actor))).for('update').limit(1)
     if (!inv) throw httpError(404, 'No such invoice')
-    if (inv.status !== 'draft') throw httpError(409, `This invoice is ${inv.status}; only a draft can change (void it and raise a new one)`)
+    if (inv.status !== 'preparing') throw httpError(409, `This invoice is ${INVOICE_STATUS_LABELS[inv.status].toLowerCase()}; only one being prepared can change (cancel it and raise a new one)`)
     if (input.notes !== undefined) await tx.update(invoices).set({ notes: input.notes }).where(eq(invoices.id, id))
     if (input.lines) await writeLines(tx, id, inv.taxRateBasisPoints, input.lines)
     await recordAudit(tx, { action: 'invoice.updated', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'invoice', subjectId: id, ip, detail: { lines: input.lines?.length } })
@@ -315,10 +315,10 @@ export async function updateInvoice(actor: SessionUser, id: string, input: Invoi
   return getInvoice(actor, id)
 }
 
-/** The invoice the PDF route renders, within the caller's tenancy (drafts only for staff). */
+/** The invoice the PDF route renders, within the caller's tenancy (invoices being prepared only for staff). */
 export async function invoiceForPdf(actor: SessionUser, id: string) {
   const inv = await loadInvoice(actor, id)
-  return { document: await invoiceDocument(inv), fileName: `invoice-${inv.number ?? 'draft'}.pdf` }
+  return { document: await invoiceDocument(inv), fileName: `invoice-${inv.number ?? 'being-prepared'}.pdf` }
 }
 
 export { loadInvoice, overdue, companyToday }

@@ -13,7 +13,7 @@ export async function ownerOverview(actor: SessionUser) {
     // Open invoices whose online payment did not match what was due: the owner resolves each.
     db.select({ id: invoices.id, number: invoices.number, customerName: customers.name, currency: invoices.currency, mismatch: invoices.paymentMismatch })
       .from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId))
-      .where(and(eq(invoices.companyId, actor.companyId), eq(invoices.status, 'open'), isNotNull(invoices.paymentMismatch)))
+      .where(and(eq(invoices.companyId, actor.companyId), eq(invoices.status, 'due'), isNotNull(invoices.paymentMismatch)))
       .orderBy(desc(invoices.updatedAt)).limit(20),
   ])
   const activeOf = (role: string) => staff.filter(s => s.role === role && s.active).reduce((a, s) => a + s.n, 0)

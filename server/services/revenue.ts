@@ -29,21 +29,21 @@ export async function revenueView(companyId: string, asOfDate?: string) {
   const list: RevenueContract[] = rows.map(r => ({ ...r, priceMinor: Number(r.priceMinor), plannedVisits: Number(r.plannedVisits) }))
   const figures = revenueFigures(list, asOf, new Map(rows.map(r => [r.id, r.autoRenew])))
 
-  // Receivables: what open invoices still ask for, by days past their due date.
-  const open = await db.select({ dueDate: invoices.dueDate, due: sql<number>`(${invoices.totalMinor} - ${invoices.amountPaidMinor})::int` })
-    .from(invoices).where(and(eq(invoices.companyId, companyId), eq(invoices.status, 'open'), eq(invoices.currency, company!.currency)))
+  // Receivables: what due invoices still ask for, by days past their due date.
+  const due = await db.select({ dueDate: invoices.dueDate, due: sql<number>`(${invoices.totalMinor} - ${invoices.amountPaidMinor})::int` })
+    .from(invoices).where(and(eq(invoices.companyId, companyId), eq(invoices.status, 'due'), eq(invoices.currency, company!.currency)))
   const buckets = new Map(RECEIVABLE_BUCKETS.map(b => [b, { bucket: b, count: 0, amountMinor: 0 }]))
-  for (const r of open) {
+  for (const r of due) {
     const b = buckets.get(receivableBucket(r.dueDate ? daysBetween(r.dueDate, asOf) : 0))!
     b.count++
     b.amountMinor += Number(r.due)
   }
 
-  // Invoiced (before tax, not void) over the last 12 months, by the contract's plan.
+  // Invoiced (before tax; not cancelled or written off) over the last 12 months, by the contract's plan.
   const since = sql`(${asOf}::date - interval '12 months')::date`
   const invoiced = await db.select({ planId: plans.id, planName: plans.name, subtotalMinor: sql<number>`sum(${invoices.subtotalMinor})::bigint`, paidMinor: sql<number>`sum(case when ${invoices.status} = 'paid' then ${invoices.subtotalMinor} else 0 end)::bigint` })
     .from(invoices).innerJoin(contracts, eq(contracts.id, invoices.contractId)).innerJoin(plans, eq(plans.id, contracts.planId))
-    .where(and(eq(invoices.companyId, companyId), sql`${invoices.status} in ('open', 'paid')`, eq(invoices.currency, company!.currency), sql`${invoices.issueDate} > ${since}`, sql`${invoices.issueDate} <= ${asOf}`))
+    .where(and(eq(invoices.companyId, companyId), sql`${invoices.status} in ('due', 'paid')`, eq(invoices.currency, company!.currency), sql`${invoices.issueDate} > ${since}`, sql`${invoices.issueDate} <= ${asOf}`))
     .groupBy(plans.id, plans.name)
   const invoicedByPlan = new Map(invoiced.map(r => [r.planId, r]))
   const planIds = new Set([...figures.byPlan.map(p => p.planId), ...invoicedByPlan.keys()])

@@ -166,7 +166,7 @@ const COL = {
 /** Renders the invoice to PDF bytes. Lays out only: every amount comes from `doc`. */
 export async function renderInvoicePdf(doc: InvoiceDocument, opts: RenderInvoicePdfOptions = {}): Promise<Buffer> {
   const fonts = opts.fonts === undefined ? workSans() : opts.fonts === null ? null : givenFonts(opts.fonts)
-  const title = doc.number ? `Invoice ${doc.number}` : 'Draft invoice'
+  const title = doc.number ? `Invoice ${doc.number}` : 'Invoice being prepared'
 
   const pdf = new PDFDocument({
     size: 'LETTER',
@@ -220,7 +220,7 @@ export async function renderInvoicePdf(doc: InvoiceDocument, opts: RenderInvoice
   const metaWidth = bodyWidth - 300
   let rightY = y
   rightY += put('Invoice', metaX, rightY, { width: metaWidth, font: 'bold', size: 18, color: ACCENT, align: 'right' })
-  rightY += put(doc.number ?? 'Draft', metaX, rightY, { width: metaWidth, font: 'bold', size: 11, align: 'right' }) + 8
+  rightY += put(doc.number ?? INVOICE_STATUS_LABELS.preparing, metaX, rightY, { width: metaWidth, font: 'bold', size: 11, align: 'right' }) + 8
   const meta: Array<[string, string]> = [['Status', INVOICE_STATUS_LABELS[doc.status]]]
   if (doc.issueDate) meta.push(['Issue date', formatDay(doc.issueDate)])
   if (doc.dueDate) meta.push(['Due date', formatDay(doc.dueDate)])
@@ -237,9 +237,9 @@ export async function renderInvoicePdf(doc: InvoiceDocument, opts: RenderInvoice
   }
   y = Math.max(leftY, rightY) + 22
 
-  // ——— Void notice ———
-  if (doc.status === 'void') {
-    const text = 'VOID — this invoice has been cancelled. No payment is due.'
+  // ——— Cancelled notice ———
+  if (doc.status === 'cancelled') {
+    const text = 'CANCELLED — this invoice has been cancelled. No payment is due.'
     pdf.font('bold').fontSize(11)
     const h = pdf.heightOfString(text, { width: bodyWidth - 20 }) + 14
     pdf.save().rect(left, y, bodyWidth, h).lineWidth(1.5).strokeColor(ALERT).stroke().restore()
@@ -333,14 +333,14 @@ export async function renderInvoicePdf(doc: InvoiceDocument, opts: RenderInvoice
   if (doc.status === 'paid') {
     paragraph(doc.paidAt ? `Paid on ${formatDay(doc.paidAt)}` : 'Paid', doc.paymentNote?.trim() ?? '', ACCENT)
   }
-  else if (doc.status === 'void') {
-    paragraph('VOID', 'This invoice was cancelled and is kept for the record only.', ALERT)
+  else if (doc.status === 'cancelled') {
+    paragraph(INVOICE_STATUS_LABELS.cancelled, 'This invoice was cancelled and is kept for the record only.', ALERT)
   }
   if (doc.notes.trim()) paragraph('Notes', doc.notes.trim())
 
   // ——— Footer on every page, inside the bottom margin ———
   const range = pdf.bufferedPageRange()
-  const footerLeft = doc.number ? `${doc.company.name} · Invoice ${doc.number}` : `${doc.company.name} · Draft invoice`
+  const footerLeft = doc.number ? `${doc.company.name} · Invoice ${doc.number}` : `${doc.company.name} · Invoice being prepared`
   for (let i = range.start; i < range.start + range.count; i++) {
     pdf.switchToPage(i)
     const savedBottom = pdf.page.margins.bottom

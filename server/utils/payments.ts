@@ -1,4 +1,5 @@
 import Stripe from 'stripe'
+import { providerAction, stateFromProvider, type ClosingState } from './payment-states'
 
 /**
  * The only place that talks to the payment provider, through its official SDK.
@@ -38,6 +39,27 @@ export function verifyWebhook(payload: string, signature: string): Stripe.Event 
   const secret = process.env.STRIPE_WEBHOOK_SECRET
   if (!secret) throw new PaymentsNotConfiguredError('The webhook signing secret is not configured (STRIPE_WEBHOOK_SECRET)')
   return Stripe.webhooks.constructEvent(payload, signature, secret)
+}
+
+/**
+ * Closes the provider's copy of an invoice as the owner closed ours (`to`), so its payment page
+ * stops asking for money: 'removed' when it was never issued there (the unfinished copy is deleted),
+ * 'unchanged' when it was no longer waiting for money there, 'closed' otherwise.
+ */
+export async function closeOnProvider(ref: string, to: ClosingState, idempotencyKey: string): Promise<'removed' | 'unchanged' | 'closed'> {
+  const stripe = usePayments()
+  const remote = await stripe.invoices.retrieve(ref)
+  const theirs = stateFromProvider(remote.status)
+  if (theirs === 'preparing') {
+    await stripe.invoices.del(ref).catch(() => {})
+    return 'removed'
+  }
+  if (theirs !== 'due') return 'unchanged'
+  const action = providerAction(to)
+  if (action === 'void') await stripe.invoices.voidInvoice(ref, {}, { idempotencyKey })
+  else if (action === 'mark_uncollectible') await stripe.invoices.markUncollectible(ref, {}, { idempotencyKey })
+  else await stripe.invoices.pay(ref, { paid_out_of_band: true }, { idempotencyKey })
+  return 'closed'
 }
 
 /** The app's public address, for links in e-mails and the return link from the payment page. */

@@ -35,29 +35,27 @@ export const invoiceCreateSchema = z.object({
 }).refine(i => !i.periodStart || !i.periodEnd || i.periodStart <= i.periodEnd, { path: ['periodEnd'], message: 'The period ends before it starts' })
 export type InvoiceCreateInput = z.output<typeof invoiceCreateSchema>
 
-/** PATCH of a draft: the lines (the whole list) and the notes, each only when sent. */
+/** PATCH of an invoice being prepared: the lines (the whole list) and the notes, each only when sent. */
 export const invoiceUpdateSchema = updateSchema({ lines, notes: text(2000) })
 export type InvoiceUpdateInput = z.output<typeof invoiceUpdateSchema>
 
-export const INVOICE_ACTIONS = ['finalize', 'send', 'void', 'mark_uncollectible', 'record_payment'] as const
-export type InvoiceActionName = (typeof INVOICE_ACTIONS)[number]
 export const invoiceActionSchema = z.discriminatedUnion('action', [
-  z.object({ action: z.literal('finalize') }),
+  z.object({ action: z.literal('issue') }),
   z.object({ action: z.literal('send') }),
-  z.object({ action: z.literal('void'), reason: text(500, 'Say why') }),
-  z.object({ action: z.literal('mark_uncollectible'), reason: text(500, 'Say why') }),
+  z.object({ action: z.literal('cancel'), reason: text(500, 'Say why') }),
+  z.object({ action: z.literal('write_off'), reason: text(500, 'Say why') }),
   z.object({
     action: z.literal('record_payment'),
     method: z.enum(OFFLINE_PAYMENT_METHODS, 'Choose cheque, bank transfer or cash'),
     reference: text(120).default(''),
     paidOn: localDate,
   }),
-], 'Choose finalize, send, void, mark_uncollectible or record_payment')
+], 'Choose issue, send, cancel, write_off or record_payment')
 export type InvoiceAction = z.output<typeof invoiceActionSchema>
 
 export const INVOICE_SORTS = ['number', 'issueDate', 'dueDate', 'total', 'status', 'customer'] as const
 export const invoiceListQuery = pageQuery.extend({
-  status: z.enum([...INVOICE_STATUSES, 'overdue'], 'Use draft, open, overdue, paid, void or uncollectible').optional(),
+  status: z.enum([...INVOICE_STATUSES, 'overdue'], 'Use preparing, due, overdue, paid, cancelled or written_off').optional(),
   customerId: z.uuid('Not a valid customer id').optional(),
   contractId: z.uuid('Not a valid contract id').optional(),
   from: localDate.optional(),

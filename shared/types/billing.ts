@@ -1,10 +1,39 @@
 // Billing: the closed sets shared by the schema, the API and the screens, and the shape an
 // invoice is shown in (screen, e-mail and PDF all read `InvoiceDocument`).
 
-export const INVOICE_STATUSES = ['draft', 'open', 'paid', 'void', 'uncollectible'] as const
+/**
+ * The one home of an invoice's states in our own words (what happened to the money): the stored
+ * values, their labels and their pill colours, used by the pages, the PDF, the CSV and the e-mails.
+ * `preparing`: being written, no number yet; `due`: issued with a number, waiting for the money
+ * (shown "Overdue" past its due date, a label derived from the date, not a state); `paid`;
+ * `cancelled`: raised in error and called off, keeps its number; `written_off`: given up on.
+ * The payment provider's own names live only in its adapter (server/utils/payment-states.ts).
+ */
+export const INVOICE_STATUSES = ['preparing', 'due', 'paid', 'cancelled', 'written_off'] as const
 export type InvoiceStatus = (typeof INVOICE_STATUSES)[number]
 export const INVOICE_STATUS_LABELS: Record<InvoiceStatus, string> = {
-  draft: 'Draft', open: 'Open', paid: 'Paid', void: 'Void', uncollectible: 'Uncollectible',
+  preparing: 'Being prepared', due: 'Due', paid: 'Paid', cancelled: 'Cancelled', written_off: 'Written off',
+}
+/** The label of a due invoice past its due date. */
+export const INVOICE_OVERDUE_LABEL = 'Overdue'
+/** The status pill's colours (the words always show too, never colour alone). */
+export const INVOICE_STATUS_TONES: Record<InvoiceStatus | 'overdue', string> = {
+  preparing: 'bg-stone-100 text-stone-700', due: 'bg-amber-100 text-amber-900', paid: 'bg-pond-100 text-pond-900',
+  cancelled: 'bg-stone-200 text-stone-700', written_off: 'bg-stone-200 text-stone-800', overdue: 'bg-alert-50 text-alert-700 ring-1 ring-alert-500',
+}
+export function invoiceStatusLabel(status: InvoiceStatus, overdue = false): string {
+  return overdue ? INVOICE_OVERDUE_LABEL : INVOICE_STATUS_LABELS[status]
+}
+
+/** What the owner can do to an invoice, in our words: issue (give it its number), send, record a payment, cancel, write off. */
+export const INVOICE_ACTIONS = ['issue', 'send', 'cancel', 'write_off', 'record_payment'] as const
+export type InvoiceActionName = (typeof INVOICE_ACTIONS)[number]
+export const INVOICE_ACTION_LABELS: Record<InvoiceActionName, string> = {
+  issue: 'Issue', send: 'Send', cancel: 'Cancel', write_off: 'Write off', record_payment: 'Record a payment',
+}
+/** The audit log's names for what happened to an invoice. */
+export const INVOICE_AUDIT_ACTIONS: Record<InvoiceActionName, string> = {
+  issue: 'invoice.issued', send: 'invoice.sent', cancel: 'invoice.cancelled', write_off: 'invoice.written_off', record_payment: 'invoice.payment_recorded',
 }
 
 /** Where an invoice came from: a contract's cadence (term, month, finished visit) or the owner by hand. */

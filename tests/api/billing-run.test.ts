@@ -3,6 +3,7 @@ import Stripe from 'stripe'
 import { afterAll, describe, expect, inject, it } from 'vitest'
 import * as schema from '../../server/db/schema'
 import { api, tokenFor } from '../helpers/api'
+import { providerStatus } from '../../server/utils/payment-states'
 import { BOOK_TODAY, buildBook, closeTestDb, runBillingTask, testDb, type Book } from '../helpers/billing-book'
 
 // The billing job on a hand-built book (tests/helpers/billing-book.ts), run as of 2027-03-10:
@@ -11,7 +12,7 @@ import { BOOK_TODAY, buildBook, closeTestDb, runBillingTask, testDb, type Book }
 //   K2 yearly, asks first → left alone.  K5 term ended 2027-03-05 → ended.
 //   K3 monthly $100 from 2026-12-15, first month billed → Jan 15 and Feb 15 raised, $108.00 each.
 //   K4 per visit $250, two finished visits → two invoices of $270.00.
-//   Open invoices 7, 14, 37 and 5 days overdue → reminders 1, 2, 3 (one e-mail) and none.
+//   Due invoices 7, 14, 37 and 5 days overdue → reminders 1, 2, 3 (one e-mail) and none.
 // Five invoices in all, numbered 2027-0009 … 2027-0013 after the eight already there.
 const EXPECTED_TOTALS = [10_800, 10_800, 27_000, 27_000, 129_600].sort((a, b) => a - b)
 
@@ -30,7 +31,7 @@ async function expectFinalState(book: Book) {
   const rows = await raised(book)
   expect(rows.map(r => r.totalMinor).sort((a, b) => a - b)).toEqual(EXPECTED_TOTALS)
   expect(rows.map(r => r.number).sort()).toEqual(['2027-0009', '2027-0010', '2027-0011', '2027-0012', '2027-0013'])
-  expect(rows.every(r => r.status === 'open' && r.dueDate === '2027-03-24' && r.sentAt)).toBe(true)
+  expect(rows.every(r => r.status === 'due' && r.dueDate === '2027-03-24' && r.sentAt)).toBe(true)
   expect(rows.map(r => r.billingKey).sort()).toEqual([
     `month:${book.contracts.k3}:2027-01-15`, `month:${book.contracts.k3}:2027-02-15`,
     ...rows.filter(r => r.source === 'contract_term').map(r => r.billingKey), ...rows.filter(r => r.source === 'visit').map(r => r.billingKey),
@@ -61,13 +62,13 @@ async function expectFinalState(book: Book) {
   expect(mail.every(m => m.to.includes(book.customerEmail))).toBe(true)
   const stages = await db.select({ id: schema.invoices.id, stage: schema.invoices.reminderStage }).from(schema.invoices).where(inArray(schema.invoices.id, Object.values(book.overdue)))
   expect(Object.fromEntries(stages.map(s => [s.id, s.stage]))).toEqual({ [book.overdue.i1]: 1, [book.overdue.i2]: 2, [book.overdue.i3]: 3, [book.overdue.i4]: 0 })
-  // The provider holds exactly one finalized copy of each, for the right amount.
+  // The provider holds exactly one issued copy of each, for the right amount.
   const synced = await db.select().from(schema.invoices).where(inArray(schema.invoices.id, ids))
   expect(synced.every(r => r.providerInvoiceId && r.providerSyncedAt && !r.providerError)).toBe(true)
   const [customer] = await db.select().from(schema.customers).where(eq(schema.customers.id, rows[0]!.customerId))
   const remote = await stripe().invoices.list({ customer: customer!.paymentCustomerId!, limit: 100 })
   expect(remote.data.map(r => r.amount_due).sort((a, b) => a - b)).toEqual(EXPECTED_TOTALS)
-  expect(remote.data.every(r => r.status === 'open')).toBe(true)
+  expect(remote.data.every(r => r.status === providerStatus('due'))).toBe(true)
 }
 
 describe('the billing job (billing:renew)', () => {
@@ -143,7 +144,7 @@ describe('the billing job (billing:renew)', () => {
     expect(down.result).toMatchObject({ invoicesRaised: 5, providerSynced: 0, providerFailed: 5 })
     expect(down.result.errors.length).toBe(5)
     expect(down.result.errors[0].message).toMatch(/payment provider/i)
-    const pending = await testDb().select().from(schema.invoices).where(and(eq(schema.invoices.companyId, book.companyId), eq(schema.invoices.status, 'open'), isNull(schema.invoices.providerSyncedAt)))
+    const pending = await testDb().select().from(schema.invoices).where(and(eq(schema.invoices.companyId, book.companyId), eq(schema.invoices.status, 'due'), isNull(schema.invoices.providerSyncedAt)))
     expect(pending).toHaveLength(5)
     expect(pending.every(p => p.providerError)).toBe(true)
     const [run] = await testDb().select().from(schema.taskRuns).where(eq(schema.taskRuns.id, down.result.runId))

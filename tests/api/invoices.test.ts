@@ -3,6 +3,7 @@ import { eq } from 'drizzle-orm'
 import Stripe from 'stripe'
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest'
 import * as schema from '../../server/db/schema'
+import { PAYMENT_STATES, providerStatus } from '../../server/utils/payment-states'
 import { api, baseUrl, demo, tokenFor } from '../helpers/api'
 import { closeTestDb, testDb } from '../helpers/billing-book'
 import { waitForMail } from '../helpers/mail'
@@ -40,7 +41,7 @@ const invoiceCount = async () => (await testDb().select({ id: schema.invoices.id
 describe('invoices by hand', () => {
   it('computes a draft from its lines: tax per line, rounded once (7.25 % on $10.00 taxable = $0.73)', async () => {
     const d = await draft()
-    expect(d).toMatchObject({ status: 'draft', number: null, subtotalMinor: 10_000, taxRateBasisPoints: 725, taxMinor: 73, totalMinor: 10_073, currency: 'USD' })
+    expect(d).toMatchObject({ status: 'preparing', number: null, subtotalMinor: 10_000, taxRateBasisPoints: 725, taxMinor: 73, totalMinor: 10_073, currency: 'USD' })
     expect(d.lines.map((l: { amountMinor: number }) => l.amountMinor)).toEqual([333, 333, 334, 9_000])
   })
 
@@ -63,25 +64,25 @@ describe('invoices by hand', () => {
     expect(await invoiceCount()).toBe(before)
   })
 
-  it('numbers invoices in sequence without gaps as they are finalized; a void keeps its number', async () => {
+  it('numbers invoices in sequence without gaps as they are issued; a cancelled one keeps its number', async () => {
     const a = await draft()
     const b = await draft()
-    const fa = await act(a.id, { action: 'finalize' })
+    const fa = await act(a.id, { action: 'issue' })
     expect(fa.status, JSON.stringify(fa.body)).toBe(200)
-    const fb = await act(b.id, { action: 'finalize' })
+    const fb = await act(b.id, { action: 'issue' })
     const [ya, na] = fa.body.number.split('-').map(Number)
     const [yb, nb] = fb.body.number.split('-').map(Number)
     expect(yb).toBe(ya)
     expect(nb).toBe(na + 1)
-    expect(fa.body).toMatchObject({ status: 'open', issueDate: fa.body.today })
+    expect(fa.body).toMatchObject({ status: 'due', issueDate: fa.body.today })
     // Due after the company's payment terms (30 days in the demo).
     expect(Date.parse(fa.body.dueDate) - Date.parse(fa.body.issueDate)).toBe(30 * 86_400_000)
-    expect((await act(a.id, { action: 'finalize' })).status).toBe(409)
+    expect((await act(a.id, { action: 'issue' })).status).toBe(409)
     expect((await api(`/api/invoices/${a.id}`, { method: 'PATCH', token: owner, body: { notes: 'changed' } })).status).toBe(409)
-    const v = await act(a.id, { action: 'void', reason: 'Raised twice' })
-    expect(v.body).toMatchObject({ status: 'void', number: fa.body.number })
-    expect((await act(a.id, { action: 'void', reason: 'again' })).status).toBe(409)
-    expect((await act(b.id, { action: 'void' })).status).toBe(400)
+    const v = await act(a.id, { action: 'cancel', reason: 'Raised twice' })
+    expect(v.body).toMatchObject({ status: 'cancelled', number: fa.body.number })
+    expect((await act(a.id, { action: 'cancel', reason: 'again' })).status).toBe(409)
+    expect((await act(b.id, { action: 'cancel' })).status).toBe(400)
   })
 
   it('edits a draft\'s lines and recomputes the totals', async () => {
@@ -94,7 +95,7 @@ describe('invoices by hand', () => {
 
   it('sends the invoice to the customer\'s invoice contacts, and records a cheque with a receipt', async () => {
     const d = await draft()
-    const open = (await act(d.id, { action: 'finalize' })).body
+    const open = (await act(d.id, { action: 'issue' })).body
     const sent = await act(d.id, { action: 'send' })
     expect(sent.status, JSON.stringify(sent.body)).toBe(200)
     await api('/api/outbox/flush', { method: 'POST', token: owner })
@@ -133,7 +134,7 @@ describe('invoices by hand', () => {
 
   it('renders a PDF for the owner and the invoice\'s customer', async () => {
     const d = await draft()
-    const open = (await act(d.id, { action: 'finalize' })).body
+    const open = (await act(d.id, { action: 'issue' })).body
     for (const token of [owner, priya]) {
       const r = await fetch(`${baseUrl()}/api/invoices/${d.id}/pdf`, { headers: { authorization: `Bearer ${token}` } })
       expect(r.status).toBe(200)
@@ -146,13 +147,13 @@ describe('invoices by hand', () => {
 })
 
 describe('invoice tenancy', () => {
-  it('customers see only their own invoices, never drafts; technicians see none', async () => {
+  it('customers see only their own invoices, never ones being prepared; technicians see none', async () => {
     const mine = await draft()
     const theirs = await draft(ashgroveCustomerId)
-    await act(theirs.id, { action: 'finalize' })
+    await act(theirs.id, { action: 'issue' })
     // A draft is the owner's: its customer gets 404 too.
     expect((await api(`/api/invoices/${mine.id}`, { token: priya })).status).toBe(404)
-    await act(mine.id, { action: 'finalize' })
+    await act(mine.id, { action: 'issue' })
     expect((await api(`/api/invoices/${mine.id}`, { token: priya })).status).toBe(200)
     for (const path of [`/api/invoices/${theirs.id}`, `/api/invoices/${theirs.id}/pdf`]) {
       expect((await api(path, { token: priya })).status).toBe(404)
@@ -160,13 +161,13 @@ describe('invoice tenancy', () => {
     expect((await api(`/api/invoices/${theirs.id}/pay`, { method: 'POST', token: priya })).status).toBe(404)
     const list = await api('/api/invoices?pageSize=100', { token: priya })
     expect(list.body.rows.length).toBeGreaterThan(0)
-    expect(list.body.rows.every((r: { customerId: string, status: string }) => r.customerId === priyaCustomerId && r.status !== 'draft')).toBe(true)
+    expect(list.body.rows.every((r: { customerId: string, status: string }) => r.customerId === priyaCustomerId && r.status !== 'preparing')).toBe(true)
     // Filtering for someone else's invoices finds nothing rather than theirs.
     expect((await api(`/api/invoices?customerId=${ashgroveCustomerId}`, { token: priya })).body.total).toBe(0)
     // A customer sees no internal fields.
     expect((await api(`/api/invoices/${mine.id}`, { token: priya })).body.staff).toBeNull()
     expect((await api('/api/invoices', { token: tess })).status).toBe(403)
-    expect((await api(`/api/invoices/${mine.id}/actions`, { method: 'POST', token: priya, body: { action: 'void', reason: 'x' } })).status).toBe(403)
+    expect((await api(`/api/invoices/${mine.id}/actions`, { method: 'POST', token: priya, body: { action: 'cancel', reason: 'x' } })).status).toBe(403)
   })
 })
 
@@ -180,12 +181,32 @@ describe('paying online and the payment webhook', () => {
   })
   async function openInvoice() {
     const d = await draft()
-    return (await act(d.id, { action: 'finalize' })).body as { id: string, number: string, totalMinor: number, currency: string }
+    return (await act(d.id, { action: 'issue' })).body as { id: string, number: string, totalMinor: number, currency: string }
   }
   const row = async (id: string) => (await testDb().select().from(schema.invoices).where(eq(schema.invoices.id, id)))[0]!
   const eventFor = (type: string, inv: { id: string }, extra: Record<string, unknown> = {}) => JSON.stringify({
     id: `evt_test_${randomUUID().replace(/-/g, '')}`, object: 'event', type, created: Math.floor(Date.now() / 1000), livemode: false,
     data: { object: { object: 'invoice', id: `in_unknown_${randomUUID().slice(0, 8)}`, metadata: { rillbook_invoice_id: inv.id }, status_transitions: { paid_at: Math.floor(Date.now() / 1000) }, ...extra } },
+  })
+
+  it('each provider event that closes an invoice lands on the matching state of ours; a failed payment leaves it due', async () => {
+    const closing = Object.entries(PAYMENT_STATES).filter(([, p]) => p.event)
+    expect(closing.map(([ours]) => ours).sort()).toEqual(['cancelled', 'paid', 'written_off'])
+    for (const [ours, p] of closing) {
+      const inv = await openInvoice()
+      const payload = eventFor(p.event!, inv, { amount_paid: inv.totalMinor, currency: inv.currency.toLowerCase() })
+      const r = await post(payload, signed(payload))
+      expect(r.status).toBe(200)
+      expect(await r.json()).toMatchObject({ outcome: 'applied', invoiceId: inv.id })
+      const after = await row(inv.id)
+      expect(after.status).toBe(ours)
+      if (ours === 'cancelled') expect(after.cancelledAt).not.toBeNull()
+      if (ours === 'written_off') expect(after.writtenOffAt).not.toBeNull()
+    }
+    const inv = await openInvoice()
+    const failed = eventFor('invoice.payment_failed', inv, { last_payment_error: { message: 'Card declined' } })
+    expect((await post(failed, signed(failed))).status).toBe(200)
+    expect(await row(inv.id)).toMatchObject({ status: 'due', lastPaymentError: 'Card declined' })
   })
 
   it('a bad or missing signature gets 400 and changes nothing', async () => {
@@ -196,7 +217,7 @@ describe('paying online and the payment webhook', () => {
     expect((await post(payload)).status).toBe(400)
     // Signed, then altered: still refused.
     expect((await post(payload.replace('invoice.paid', 'invoice.voided'), signed(payload))).status).toBe(400)
-    expect((await row(inv.id)).status).toBe('open')
+    expect((await row(inv.id)).status).toBe('due')
     // Nothing recorded for this event (other events, e.g. the provider's own for this invoice, may arrive meanwhile).
     expect(await testDb().select({ id: schema.paymentEvents.id }).from(schema.paymentEvents).where(eq(schema.paymentEvents.id, eventId))).toHaveLength(0)
   })
@@ -232,11 +253,11 @@ describe('paying online and the payment webhook', () => {
     const sent = await send(short, { amount_paid: short.totalMinor - 1000, currency: 'usd' })
     expect(sent.body).toMatchObject({ received: true, invoiceId: short.id })
     expect(sent.body.outcome).toMatch(/^recorded: /)
-    expect(await row(short.id)).toMatchObject({ status: 'open', paidAt: null, amountPaidMinor: short.totalMinor - 1000 })
+    expect(await row(short.id)).toMatchObject({ status: 'due', paidAt: null, amountPaidMinor: short.totalMinor - 1000 })
     expect((await row(short.id)).paymentMismatch).toMatchObject({ eventId: sent.eventId, paidMinor: short.totalMinor - 1000, paidCurrency: 'USD', dueMinor: short.totalMinor, countedMinor: short.totalMinor - 1000 })
     expect(await receipts(short.id)).toBe(0)
     const page = await api(`/api/invoices/${short.id}`, { token: owner })
-    expect(page.body).toMatchObject({ status: 'open', amountDueMinor: 1000, staff: { paymentMismatch: { paidMinor: short.totalMinor - 1000, dueMinor: short.totalMinor } } })
+    expect(page.body).toMatchObject({ status: 'due', amountDueMinor: 1000, staff: { paymentMismatch: { paidMinor: short.totalMinor - 1000, dueMinor: short.totalMinor } } })
     // More than is due, the right amount in another currency, or no amount at all: nothing counted.
     const over = await openInvoice()
     await send(over, { amount_paid: over.totalMinor + 500, currency: 'usd' })
@@ -245,7 +266,7 @@ describe('paying online and the payment webhook', () => {
     const silent = await openInvoice()
     await send(silent, {})
     for (const [inv, paidMinor, paidCurrency] of [[over, over.totalMinor + 500, 'USD'], [euros, euros.totalMinor, 'EUR'], [silent, null, 'USD']] as const) {
-      expect(await row(inv.id)).toMatchObject({ status: 'open', amountPaidMinor: 0, paidAt: null })
+      expect(await row(inv.id)).toMatchObject({ status: 'due', amountPaidMinor: 0, paidAt: null })
       expect((await row(inv.id)).paymentMismatch).toMatchObject({ paidMinor, paidCurrency, dueMinor: inv.totalMinor, countedMinor: 0 })
       expect(await receipts(inv.id)).toBe(0)
     }
@@ -259,7 +280,7 @@ describe('paying online and the payment webhook', () => {
     expect(((await api('/api/overview', { token: owner })).body.paymentsToCheck as Array<{ id: string }>).some(p => p.id === short.id)).toBe(false)
   })
 
-  it('the customer pays through the provider\'s page: a declined card leaves it open, a good card pays it', async () => {
+  it('the customer pays through the provider\'s page: a declined card leaves it due, a good card pays it', async () => {
     const inv = await openInvoice()
     const pay = await api(`/api/invoices/${inv.id}/pay`, { method: 'POST', token: priya })
     expect(pay.status, JSON.stringify(pay.body)).toBe(200)
@@ -267,7 +288,7 @@ describe('paying online and the payment webhook', () => {
     const declined = await fetch(pay.body.url, { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: 'card=4000000000000002' })
     expect(await declined.text()).toContain('Your card was declined.')
     await expect.poll(async () => (await row(inv.id)).lastPaymentError, { timeout: 10_000 }).toBe('Your card was declined.')
-    expect((await row(inv.id)).status).toBe('open')
+    expect((await row(inv.id)).status).toBe('due')
     const ok = await fetch(pay.body.url, { method: 'POST', headers: { 'content-type': 'application/x-www-form-urlencoded' }, body: 'card=4242 4242 4242 4242' })
     const page = await ok.text()
     expect(page).toContain('Payment received')
@@ -284,22 +305,22 @@ describe('paying online and the payment webhook', () => {
     expect((await api(`/api/invoices/${inv.id}/pay`, { method: 'POST', token: priya })).status).toBe(409)
   })
 
-  it('voiding an invoice the provider holds voids it there too; with the provider down nothing changes (503)', async () => {
+  it('cancelling an invoice the provider holds closes it there too; with the provider down nothing changes (503)', async () => {
     const inv = await openInvoice()
     await api(`/api/invoices/${inv.id}/pay`, { method: 'POST', token: priya })
     const ref = (await row(inv.id)).providerInvoiceId!
     await fetch(`${inject('paymentsUrl')}/__fake/outage`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ down: true }) })
     let r
     try {
-      r = await act(inv.id, { action: 'void', reason: 'Customer moved' })
+      r = await act(inv.id, { action: 'cancel', reason: 'Customer moved' })
     }
     finally {
       await fetch(`${inject('paymentsUrl')}/__fake/outage`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ down: false }) })
     }
     expect(r.status).toBe(503)
-    expect((await row(inv.id)).status).toBe('open')
-    expect((await act(inv.id, { action: 'void', reason: 'Customer moved' })).body.status).toBe('void')
+    expect((await row(inv.id)).status).toBe('due')
+    expect((await act(inv.id, { action: 'cancel', reason: 'Customer moved' })).body.status).toBe('cancelled')
     const stripe = new Stripe(inject('paymentsEnv').STRIPE_SECRET_KEY!, { host: '127.0.0.1', port: Number(new URL(inject('paymentsUrl')).port), protocol: 'http', maxNetworkRetries: 0, telemetry: false })
-    expect((await stripe.invoices.retrieve(ref)).status).toBe('void')
+    expect((await stripe.invoices.retrieve(ref)).status).toBe(providerStatus('cancelled'))
   })
 })

@@ -1,5 +1,9 @@
 import { afterAll, describe, expect, it, inject } from 'vitest'
-import { readFileSync } from 'node:fs'
+import { cpSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { join } from 'node:path'
+import { drizzle } from 'drizzle-orm/node-postgres'
+import { migrate } from 'drizzle-orm/node-postgres/migrator'
 import pg from 'pg'
 import { legacyRuleToVisitSchedule } from '../../shared/schemas/visit-schedule'
 // @ts-expect-error plain ESM script without types
@@ -67,6 +71,66 @@ describe('migrations', () => {
     finally {
       await c.query('ROLLBACK')
       await c.end()
+    }
+  })
+
+  it('carries invoices and their audit history over to the states in our own words', async () => {
+    const before = `${name}_invoice_states`
+    const folder = mkdtempSync(join(tmpdir(), 'rillbook-migrations-'))
+    try {
+      // A database at the migration before the new names (0014), with invoices in every old state.
+      cpSync(new URL('../../drizzle', import.meta.url), folder, { recursive: true })
+      const journal = JSON.parse(readFileSync(join(folder, 'meta/_journal.json'), 'utf8'))
+      journal.entries = journal.entries.filter((e: { tag: string }) => e.tag <= '0014_technician-days')
+      writeFileSync(join(folder, 'meta/_journal.json'), JSON.stringify(journal))
+      await adminQuery(`CREATE DATABASE "${before}"`)
+      const pool = new pg.Pool({ connectionString: urlFor(before), max: 1 })
+      await migrate(drizzle(pool), { migrationsFolder: folder })
+      const c = await pool.connect()
+      try {
+        // Only the invoices and the audit log matter here: skip the foreign keys for these inserts.
+        await c.query('SET session_replication_role = replica')
+        const old = ['draft', 'open', 'paid', 'void', 'uncollectible']
+        for (const [i, status] of old.entries()) {
+          await c.query(`insert into invoices (company_id, customer_id, source, currency, tax_rate_bp, status, number, voided_at, uncollectible_at)
+            values (gen_random_uuid(), gen_random_uuid(), 'manual', 'USD', 725, $1, $2, $3, $4)`,
+          [status, status === 'draft' ? null : `2026-00${i}`, status === 'void' ? '2026-05-01T10:00:00Z' : null, status === 'uncollectible' ? '2026-06-01T10:00:00Z' : null])
+        }
+        for (const action of ['invoice.finalize', 'invoice.send', 'invoice.void', 'invoice.mark_uncollectible', 'invoice.record_payment', 'invoice.created']) {
+          await c.query(`insert into audit_log (action, subject_type, subject_id) values ($1, 'invoice', 'x')`, [action])
+        }
+        await c.query(`insert into audit_log (action, subject_type, subject_id, detail) values ('invoice.paid_while_closed', 'invoice', 'y', '{"status":"void","eventId":"evt_1"}')`)
+        await c.query('SET session_replication_role = DEFAULT')
+      }
+      finally {
+        c.release()
+        await pool.end()
+      }
+
+      await runMigrations(urlFor(before))
+      const d = new pg.Client({ connectionString: urlFor(before) })
+      await d.connect()
+      try {
+        const { rows } = await d.query(`select number, status::text, cancelled_at, written_off_at from invoices order by number nulls first`)
+        expect(rows.map(r => r.status)).toEqual(['preparing', 'due', 'paid', 'cancelled', 'written_off'])
+        expect(rows[3].cancelled_at?.toISOString()).toBe('2026-05-01T10:00:00.000Z')
+        expect(rows[4].written_off_at?.toISOString()).toBe('2026-06-01T10:00:00.000Z')
+        const values = await d.query(`select unnest(enum_range(null::invoice_status))::text as v`)
+        expect(values.rows.map(r => r.v)).toEqual(['preparing', 'due', 'paid', 'cancelled', 'written_off'])
+        const audit = await d.query(`select action, detail from audit_log order by id`)
+        expect(audit.rows.map(r => r.action)).toEqual(['invoice.issued', 'invoice.sent', 'invoice.cancelled', 'invoice.written_off', 'invoice.payment_recorded', 'invoice.created', 'invoice.paid_while_closed'])
+        expect(audit.rows[6].detail).toEqual({ status: 'cancelled', eventId: 'evt_1' })
+        // A new invoice starts out being prepared.
+        const def = await d.query(`select column_default from information_schema.columns where table_name = 'invoices' and column_name = 'status'`)
+        expect(def.rows[0].column_default).toContain('preparing')
+      }
+      finally {
+        await d.end()
+      }
+    }
+    finally {
+      rmSync(folder, { recursive: true, force: true })
+      await adminQuery(`DROP DATABASE IF EXISTS "${before}" WITH (FORCE)`)
     }
   })
 })

@@ -11,7 +11,7 @@ afterAll(async () => { await browser?.close() })
 const receivables = async () => (await api('/api/revenue', { token: await tokenFor(demo.owner) })).body.receivablesTotalMinor as number
 
 describe('billing in the browser', () => {
-  it('the owner writes, finalizes and sends an invoice; the customer gets the e-mail, pays on the provider\'s page; the owner sees it paid', async () => {
+  it('the owner writes, issues and sends an invoice; the customer gets the e-mail, pays on the provider\'s page; the owner sees it paid', async () => {
     const owner = await browser.newContext({ viewport: VIEWPORTS.desktop })
     const op = await owner.newPage()
     await signInThroughForm(op, demo.owner)
@@ -30,17 +30,17 @@ describe('billing in the browser', () => {
     await op.getByLabel('Unit price').fill('86.50')
     // $86.50 + 7.25 % = 86.50 + 6.27125 → $92.77, shown before saving.
     await expect.poll(() => op.getByTestId('draft-totals').textContent()).toContain('$92.77')
-    await op.getByRole('button', { name: 'Save draft' }).click()
+    await op.getByRole('button', { name: 'Save for later' }).click()
     await op.waitForURL(url => /^\/invoices\/[0-9a-f-]{36}$/.test(url.pathname))
     const invoiceId = op.url().split('/').pop()!
-    await op.getByRole('button', { name: 'Finalize' }).click()
-    await expect.poll(() => op.getByTestId('invoice-status').first().textContent()).toMatch(/open/i)
+    await op.getByRole('button', { name: 'Issue' }).click()
+    await expect.poll(() => op.getByTestId('invoice-status').first().textContent()).toMatch(/^\s*due\s*$/i)
     const number = (await op.getByRole('heading', { level: 1 }).textContent())!.replace('Invoice ', '').trim()
     expect(number).toMatch(/^\d{4}-\d{4}$/)
     const before = await receivables()
     await op.getByRole('button', { name: 'Send to the customer' }).click()
     await expect.poll(() => op.getByTestId('invoice-note').textContent()).toContain('Sent: done.')
-    await shot(op, 'billing-invoice-open-desktop')
+    await shot(op, 'billing-invoice-due-desktop')
 
     // The e-mail reaches the customer (the outbox is flushed by the owner's button or the minute task).
     await api('/api/outbox/flush', { method: 'POST', token: await tokenFor(demo.owner) })
@@ -86,7 +86,7 @@ describe('billing in the browser', () => {
     await customer.close()
   })
 
-  it('the revenue view and the invoices list read well on a phone', async () => {
+  it('the revenue view, the invoices list and an invoice read well on a phone', async () => {
     const context = await browser.newContext({ viewport: VIEWPORTS.phone, isMobile: true, hasTouch: true })
     const page = await context.newPage()
     await signInThroughForm(page, demo.owner)
@@ -100,6 +100,11 @@ describe('billing in the browser', () => {
     await page.goto(`${baseUrl()}/invoices`)
     await page.getByRole('cell').first().waitFor()
     await shot(page, 'billing-invoices-phone')
+    await page.getByRole('cell').getByRole('link').first().click()
+    await page.getByTestId('invoice-status').first().waitFor()
+    await page.waitForLoadState('networkidle')
+    expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(VIEWPORTS.phone.width + 1)
+    await shot(page, 'billing-invoice-phone')
     await context.close()
   })
 })

@@ -79,7 +79,7 @@ export async function buildBook(label: string): Promise<Book> {
       const number = `2027-${String(seq).padStart(4, '0')}`
       const [row] = await tx.insert(schema.invoices).values({
         companyId, customerId: cust!.id, currency: 'USD', taxRateBasisPoints: 800, number, numberYear: 2027, numberSeq: seq, subtotalMinor: Math.round(v.totalMinor / 1.08), taxMinor: v.totalMinor - Math.round(v.totalMinor / 1.08),
-        source: 'manual', status: 'open', providerSyncedAt: new Date(), ...v,
+        source: 'manual', status: 'due', providerSyncedAt: new Date(), ...v,
       }).returning()
       await tx.insert(schema.invoiceLines).values({ invoiceId: row!.id, kind: 'other', description: 'Earlier work', quantity: 1, unitPriceMinor: row!.subtotalMinor, amountMinor: row!.subtotalMinor })
       return row!.id

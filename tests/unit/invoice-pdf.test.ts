@@ -22,7 +22,7 @@ const pageCount = (pdf: Buffer) => pdf.toString('latin1').match(/\/Type \/Page\b
 function sample(over: Partial<InvoiceDocument> = {}): InvoiceDocument {
   return {
     number: '2026-0007',
-    status: 'open',
+    status: 'due',
     currency: 'USD',
     issueDate: '2026-12-02',
     dueDate: '2027-01-01',
@@ -85,7 +85,7 @@ describe('invoice PDF', () => {
     const [page] = readPages(pdf)
     const text = pageText(page!)
     for (const s of [
-      'Heronmere Water Gardens', '14 Reedbank Lane', 'office@heronmere.example', 'Invoice', '2026-0007', 'Open',
+      'Heronmere Water Gardens', '14 Reedbank Lane', 'office@heronmere.example', 'Invoice', '2026-0007', 'Due',
       'Dec 2, 2026', 'Jan 1, 2027', 'Jan 1, 2027 – Dec 31, 2027', 'Bill to', 'Whitcombe household', '3 Alder Close',
       'Description', 'Qty', 'Unit price', 'Amount', 'Seasonal Care — 2027 term', 'Pump impeller (part)',
       'Dechlorinator treatment', '1.5', '$38.50', '$77.00', 'Subtotal', '$1,554.00', 'Tax (7.25 %)', '$110.71',
@@ -140,15 +140,15 @@ describe('invoice PDF', () => {
     expect(text).toContain('Cheque 1042')
   })
 
-  it('marks void invoices clearly, and drafts have no number', async () => {
-    const voided = pageText(readPages(await renderInvoicePdf(sample({ status: 'void' }), { compress: false }))[0]!)
-    expect(voided).toContain('Void')
-    expect(voided).toMatch(/^VOID — /m)
+  it('marks cancelled invoices clearly, and invoices being prepared have no number', async () => {
+    const voided = pageText(readPages(await renderInvoicePdf(sample({ status: 'cancelled' }), { compress: false }))[0]!)
+    expect(voided).toContain('Cancelled')
+    expect(voided).toMatch(/^CANCELLED — /m)
 
-    const draftPdf = await renderInvoicePdf(sample({ number: null, status: 'draft', issueDate: null, dueDate: null, periodStart: null, periodEnd: null, taxRateBasisPoints: 800 }), { compress: false })
-    expect(infoEntry(draftPdf, 'Title')).toBe('Draft invoice')
+    const draftPdf = await renderInvoicePdf(sample({ number: null, status: 'preparing', issueDate: null, dueDate: null, periodStart: null, periodEnd: null, taxRateBasisPoints: 800 }), { compress: false })
+    expect(infoEntry(draftPdf, 'Title')).toBe('Invoice being prepared')
     const draft = pageText(readPages(draftPdf)[0]!)
-    expect(draft).toContain('Invoice\nDraft')
+    expect(draft).toContain('Invoice\nBeing prepared')
     expect(draft).toContain('Tax (8 %)')
     expect(draft).not.toContain('Issue date')
     expect(draft).not.toContain('Service period')

@@ -1,7 +1,7 @@
 import { invoiceCreateSchema } from '../../../shared/schemas/billing'
 import { createInvoice } from '../../services/invoices'
 
-// A draft invoice the owner writes by hand (parts, extra visits, treatments); finalize opens it.
+// An invoice the owner writes by hand (parts, extra visits, treatments); it is being prepared until issued.
 export default defineEventHandler(async (event) => {
   const user = await requireUser(event, { permission: 'billing.manage' })
   const input = await readBodyAs(event, invoiceCreateSchema)

@@ -14,7 +14,7 @@ export const invoiceLineKind = pgEnum('invoice_line_kind', LINE_KINDS)
  * An invoice. Money in integer minor units of `currency`. `billingKey` is unique per company: one
  * invoice per contract term (`term:<contract>`), contract month (`month:<contract>:<YYYY-MM-DD>`)
  * or finished visit (`visit:<visit>`), so raising the same one twice is impossible. `number` is
- * given at finalizing from `invoice_counters`, gapless per company and year.
+ * given at issuing from `invoice_counters`, gapless per company and year.
  */
 export const invoices = pgTable('invoices', {
   id: id(),
@@ -24,7 +24,7 @@ export const invoices = pgTable('invoices', {
   visitId: uuid('visit_id').references(() => visits.id, { onDelete: 'set null' }),
   source: invoiceSource('source').notNull(),
   billingKey: text('billing_key'),
-  status: invoiceStatus('status').notNull().default('draft'),
+  status: invoiceStatus('status').notNull().default('preparing'),
   number: text('number'),
   numberYear: smallint('number_year'),
   numberSeq: integer('number_seq'),
@@ -44,17 +44,17 @@ export const invoices = pgTable('invoices', {
   finalizedAt: timestamp('finalized_at', { withTimezone: true }),
   sentAt: timestamp('sent_at', { withTimezone: true }),
   paidAt: timestamp('paid_at', { withTimezone: true }),
-  voidedAt: timestamp('voided_at', { withTimezone: true }),
-  uncollectibleAt: timestamp('uncollectible_at', { withTimezone: true }),
+  cancelledAt: timestamp('cancelled_at', { withTimezone: true }),
+  writtenOffAt: timestamp('written_off_at', { withTimezone: true }),
   paymentMethod: text('payment_method'),
   paymentReference: text('payment_reference').notNull().default(''),
   /** The provider's last word on a failed payment attempt. */
   lastPaymentError: text('last_payment_error'),
-  /** The last online payment whose amount did not match what was due (the invoice stayed open). */
+  /** The last online payment whose amount did not match what was due (the invoice stayed due). */
   paymentMismatch: jsonb('payment_mismatch').$type<PaymentMismatch>(),
   /** Overdue reminders sent so far: 0, then 1 (7 days), 2 (14 days), 3 (30 days). */
   reminderStage: smallint('reminder_stage').notNull().default(0),
-  /** The provider's copy: set once created there; `providerSyncedAt` once it is finalized there. */
+  /** The provider's copy: set once created there; `providerSyncedAt` once it is issued there. */
   providerInvoiceId: text('provider_invoice_id'),
   providerHostedUrl: text('provider_hosted_url'),
   providerSyncedAt: timestamp('provider_synced_at', { withTimezone: true }),

@@ -2,7 +2,7 @@ import { invoiceActionSchema } from '../../../../shared/schemas/billing'
 import { idParam } from '../../../../shared/schemas/common'
 import { actOnInvoice } from '../../../services/invoice-actions'
 
-// finalize | send | void | mark_uncollectible | record_payment (cheque, bank transfer, cash).
+// issue | send | cancel | write_off | record_payment (cheque, bank transfer, cash).
 export default defineEventHandler(async (event) => {
   const user = await requireUser(event, { permission: 'billing.manage' })
   const { id } = paramsAs(event, idParam)

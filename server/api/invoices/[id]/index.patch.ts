@@ -2,7 +2,7 @@ import { invoiceUpdateSchema } from '../../../../shared/schemas/billing'
 import { idParam } from '../../../../shared/schemas/common'
 import { updateInvoice } from '../../../services/invoices'
 
-// A draft's lines and notes; an open invoice is voided and raised again instead.
+// The lines and notes of an invoice being prepared; a due invoice is cancelled and raised again instead.
 export default defineEventHandler(async (event) => {
   const user = await requireUser(event, { permission: 'billing.manage' })
   const { id } = paramsAs(event, idParam)
