@@ -102,6 +102,7 @@ async function main() {
     process.exit(code)
   }
   for (const sig of ['SIGINT', 'SIGTERM']) process.on(sig, () => shutDown(0, 'SIGTERM'))
+  served.stopped.then(({ failed }) => shutDown(failed ? 1 : 0, 'SIGTERM'))
   // The built server keeps running even when it cannot listen: check that it does.
   const deadline = Date.now() + 30_000
   while (!(await portAnswers(host, port))) {
