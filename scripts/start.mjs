@@ -2,7 +2,8 @@
 // The one-command runner: PostgreSQL (unless DATABASE_URL is set) → migrations → demo data when
 // the database is empty → the local mail catcher (unless SMTP_HOST is set) → the local payment
 // fake (unless STRIPE_SECRET_KEY is set) → build when none exists → the app on http://HOST:PORT.
-//   node scripts/start.mjs          built server (npm start)
+// Migrations and the seed run here, once, before any worker starts.
+//   node scripts/start.mjs          built server, one worker per core (RILLBOOK_WORKERS=n overrides)
 //   node scripts/start.mjs --dev    Nuxt's dev server (npm run dev)
 import { spawn, spawnSync } from 'node:child_process'
 import { existsSync } from 'node:fs'
@@ -13,6 +14,7 @@ import { start as startDb } from './db.mjs'
 import { startMailCatcher } from './mail-catcher.mjs'
 import { installWebhookSecret, startPaymentFake } from './payment-fake.mjs'
 import { runMigrations } from './migrate.mjs'
+import { serveWorkers, workerCount } from './serve.mjs'
 
 const root = resolve(dirname(fileURLToPath(import.meta.url)), '..')
 const dev = process.argv.includes('--dev')
@@ -30,6 +32,7 @@ function portAnswers(h, p) {
 }
 
 async function main() {
+  const workers = dev ? 1 : workerCount()
   if (await portAnswers(host, port)) {
     throw new Error(`something already listens on ${host}:${port}; stop it or set PORT`)
   }
@@ -73,31 +76,43 @@ async function main() {
     say(`payments go to the local payment fake on ${payments.url} (test card 4242 4242 4242 4242)`)
   }
   else say(process.env.STRIPE_API_URL ? `payments go to ${process.env.STRIPE_API_URL}` : 'payments go to the payment provider')
-  let child
+  const closeFakes = () => Promise.race([Promise.all([catcher?.close(), payments?.close()]), new Promise(r => setTimeout(r, 1000))])
   if (dev) {
-    child = spawn(bin('nuxt'), ['dev', '--host', host, '--port', String(port)], { cwd: root, stdio: 'inherit', env })
+    const child = spawn(bin('nuxt'), ['dev', '--host', host, '--port', String(port)], { cwd: root, stdio: 'inherit', env })
+    for (const sig of ['SIGINT', 'SIGTERM']) process.on(sig, () => child.kill(sig))
+    child.on('exit', async (code) => {
+      await closeFakes()
+      process.exit(code ?? 0)
+    })
+    return
   }
-  else {
-    const entry = resolve(root, '.output/server/index.mjs')
-    if (!existsSync(entry)) {
-      say('no build found: building (about 15 s)…')
-      const built = spawnSync(bin('nuxt'), ['build'], { cwd: root, stdio: 'inherit', env: process.env })
-      if (built.status !== 0) throw new Error('the build failed')
-    }
-    child = spawn(process.execPath, [entry], { cwd: root, stdio: 'inherit', env })
-    // The built server keeps running even when it cannot listen: check that it does.
-    const deadline = Date.now() + 20_000
-    while (!(await portAnswers(host, port))) {
-      if (Date.now() > deadline || child.exitCode !== null) throw new Error(`the app did not start listening on ${host}:${port}`)
-      await new Promise(r => setTimeout(r, 200))
-    }
-    say(`Rillbook is ready on http://${host}:${port} (Ctrl-C stops it; npm run db:stop stops the database)`)
+  const entry = resolve(root, '.output/server/index.mjs')
+  if (!existsSync(entry)) {
+    say('no build found: building (about 15 s)…')
+    const built = spawnSync(bin('nuxt'), ['build'], { cwd: root, stdio: 'inherit', env: process.env })
+    if (built.status !== 0) throw new Error('the build failed')
   }
-  for (const sig of ['SIGINT', 'SIGTERM']) process.on(sig, () => child.kill(sig))
-  child.on('exit', async (code) => {
-    await Promise.race([Promise.all([catcher?.close(), payments?.close()]), new Promise(r => setTimeout(r, 1000))])
-    process.exit(code ?? 0)
-  })
+  const served = serveWorkers({ entry, env, workers, log: say })
+  let exiting = false
+  const shutDown = async (code, signal) => {
+    if (exiting) return
+    exiting = true
+    await served.stop(signal)
+    await closeFakes()
+    process.exit(code)
+  }
+  for (const sig of ['SIGINT', 'SIGTERM']) process.on(sig, () => shutDown(0, 'SIGTERM'))
+  served.stopped.then(({ failed }) => shutDown(failed ? 1 : 0, 'SIGTERM'))
+  // The built server keeps running even when it cannot listen: check that it does.
+  const deadline = Date.now() + 30_000
+  while (!(await portAnswers(host, port))) {
+    if (Date.now() > deadline) {
+      say(`the app did not start listening on ${host}:${port}`)
+      return shutDown(1, 'SIGTERM')
+    }
+    await new Promise(r => setTimeout(r, 200))
+  }
+  say(`Rillbook is ready on http://${host}:${port} with ${workers} worker${workers === 1 ? '' : 's'} (Ctrl-C stops it; npm run db:stop stops the database)`)
 }
 
 main().catch((err) => {

@@ -15,12 +15,12 @@ export function baseUrl() {
 
 export interface ApiResponse<T = any> { status: number, body: T, headers: Headers }
 
-/** One HTTP call to the test server with JSON in and out. */
-export async function api<T = any>(path: string, opts: { method?: string, token?: string, body?: unknown, headers?: Record<string, string> } = {}): Promise<ApiResponse<T>> {
+/** One HTTP call to the test server (or the server at `base`) with JSON in and out. */
+export async function api<T = any>(path: string, opts: { method?: string, token?: string, body?: unknown, headers?: Record<string, string>, base?: string } = {}): Promise<ApiResponse<T>> {
   const headers: Record<string, string> = { accept: 'application/json', ...opts.headers }
   if (opts.token) headers.authorization = `Bearer ${opts.token}`
   if (opts.body !== undefined) headers['content-type'] = 'application/json'
-  const res = await fetch(`${baseUrl()}${path}`, {
+  const res = await fetch(`${opts.base ?? baseUrl()}${path}`, {
     method: opts.method ?? 'GET',
     headers,
     body: opts.body === undefined ? undefined : typeof opts.body === 'string' ? opts.body : JSON.stringify(opts.body),
