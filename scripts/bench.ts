@@ -168,9 +168,9 @@ async function main() {
       { name: "a feature's year of readings", path: `/api/features/${feature.id}/series?range=year`, token: owner, read: true,
         base: [session, { sql: `select * from readings where feature_id = $1 and taken_at > now() - interval '1 year' order by taken_at`, params: [feature.id] }] },
       { name: 'invoices table, first page', path: '/api/invoices?page=1&pageSize=25&sort=issueDate&dir=desc', token: owner, read: true,
-        base: [session, { sql: `select i.*, c.name from invoices i join customers c on c.id = i.customer_id where i.company_id = $1 order by i.issue_date desc limit 25`, params: [companyId] }, { sql: 'select count(*) from invoices where company_id = $1', params: [companyId] }] },
+        base: [session, { sql: `select i.*, c.name from invoices i join customers c on c.id = i.customer_id where i.company_id = $1 order by i.issue_date desc, i.number_year desc, i.number_seq desc, i.id desc limit 25`, params: [companyId] }, { sql: 'select currency, sum(invoices), sum(total_minor) from invoice_day_totals where company_id = $1 group by currency', params: [companyId] }] },
       { name: 'revenue view', path: '/api/revenue', token: owner, read: true,
-        base: [session, { sql: `select ct.*, p.billing_cadence, p.price_minor from contracts ct join plans p on p.id = ct.plan_id where ct.company_id = $1 and ct.status <> 'draft'`, params: [companyId] }, { sql: `select due_date, total_minor - amount_paid_minor from invoices where company_id = $1 and status = 'due'`, params: [companyId] }] },
+        base: [session, { sql: `select ct.*, p.billing_cadence, p.price_minor, v.visits from contracts ct join plans p on p.id = ct.plan_id left join contract_planned_visits v on v.contract_id = ct.id where ct.company_id = $1 and ct.status <> 'draft'`, params: [companyId] }, { sql: `select * from invoice_day_totals where company_id = $1`, params: [companyId] }] },
       { name: 'POST /api/water/evaluate', method: 'POST', path: '/api/water/evaluate', token: owner, read: true, body: { volumeL: 12000, kind: 'koi_pond', reading: { temperatureC: 24, pH: 8.1, totalAmmoniaMgL: 0.5, khMgL: 90 } },
         base: [session] },
     ]

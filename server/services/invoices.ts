@@ -1,11 +1,11 @@
 import { and, asc, count, desc, eq, ilike, lt, ne, or, sql, type SQL } from 'drizzle-orm'
 import type { InvoiceCreateInput, InvoiceLineInput, InvoiceListQuery, InvoiceUpdateInput } from '../../shared/schemas/billing'
-import { INVOICE_STATUS_LABELS, PAYMENT_METHOD_LABELS, type InvoiceDocument, type InvoiceSource } from '../../shared/types/billing'
+import { INVOICE_STATUS_LABELS, PAYMENT_METHOD_LABELS, type InvoiceDocument, type InvoiceSource, type InvoiceStatus } from '../../shared/types/billing'
 import { addDays, formatLocalDate, localToday } from '../../shared/utils/company-time'
 import { MONEY_MAX_MINOR } from '../../shared/schemas/fields'
 import { formatTaxRate, invoiceTotals } from '../../shared/utils/billing'
 import { formatMoney } from '../../shared/utils/money'
-import { companies, contracts, customers, invoiceCounters, invoiceLines, invoices, plans } from '../db/schema'
+import { companies, contracts, customers, invoiceCounters, invoiceDayTotals, invoiceLines, invoices, plans } from '../db/schema'
 import { isStaff, ownCustomerId, type SessionUser } from '../utils/auth'
 import { useDb, type Database, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
@@ -27,7 +27,9 @@ function scope(actor: SessionUser): SQL[] {
   return where
 }
 
-const overdue = (today: string) => and(eq(invoices.status, 'due'), lt(invoices.dueDate, today))
+/** The state of an invoice still asking for money. */
+const OPEN: InvoiceStatus = 'due'
+const overdue = (today: string) => and(eq(invoices.status, OPEN), lt(invoices.dueDate, today))
 
 const listColumns = {
   id: invoices.id, number: invoices.number, status: invoices.status, source: invoices.source,
@@ -58,31 +60,61 @@ function listWhere(actor: SessionUser, q: Omit<InvoiceListQuery, 'page' | 'pageS
 function listOrder(q: Pick<InvoiceListQuery, 'sort' | 'dir'>) {
   const col = { number: invoices.number, issueDate: invoices.issueDate, dueDate: invoices.dueDate, total: invoices.totalMinor, status: invoices.status, customer: customers.name }[q.sort]
   const dir = q.dir === 'desc' ? desc : asc
-  // Plain column order so the (company, column) indexes serve it; invoices being prepared (no number or dates
-  // yet) come first when sorting newest first, last when oldest first.
-  return [dir(col), desc(invoices.numberYear), desc(invoices.numberSeq), asc(invoices.id)]
+  // Plain column order, ties by number then id in the same direction, so one (company, column,
+  // number_year, number_seq, id) index serves a page both ways without sorting; drafts (no number
+  // or dates yet) come first when sorting newest first, last when oldest first.
+  return [dir(col), dir(invoices.numberYear), dir(invoices.numberSeq), dir(invoices.id)]
 }
 
-export async function listInvoices(actor: SessionUser, q: InvoiceListQuery) {
+/**
+ * The count and sums of the filtered set from `invoice_day_totals` (a few hundred rows, not every
+ * invoice) when the filters are ones it keeps: state, overdue and issue dates, for staff. Null
+ * when a filter needs the invoices themselves (a customer, contract or search).
+ */
+async function listTotalsFromDays(actor: SessionUser, q: InvoiceListQuery, today: string) {
+  if (q.q || q.customerId || q.contractId || ownCustomerId(actor)) return null
+  const t = invoiceDayTotals
+  const where: SQL[] = [eq(t.companyId, actor.companyId)]
+  if (q.status === 'overdue') where.push(eq(t.status, OPEN), lt(t.dueDate, today))
+  else if (q.status) where.push(eq(t.status, q.status))
+  if (q.from) where.push(sql`${t.issueDate} >= ${q.from}`)
+  if (q.to) where.push(sql`${t.issueDate} <= ${q.to}`)
+  const rows = await useDb().select({
+    currency: t.currency, invoices: sql<number>`sum(${t.invoices})::int`, totalMinor: sql<number>`sum(${t.totalMinor})::bigint`,
+    dueMinor: sql<number>`sum(case when ${t.status} = ${OPEN} then ${t.totalMinor} - ${t.amountPaidMinor} else 0 end)::bigint`,
+  }).from(t).where(and(...where)).groupBy(t.currency).orderBy(t.currency)
+  return {
+    total: rows.reduce((n, r) => n + Number(r.invoices), 0),
+    sums: rows.map(r => ({ currency: r.currency, totalMinor: Number(r.totalMinor), dueMinor: Number(r.dueMinor) })),
+  }
+}
+
+async function listTotalsFromInvoices(q: InvoiceListQuery, cond: SQL | undefined) {
   const db = useDb()
-  const today = await companyToday(actor.companyId)
-  const cond = listWhere(actor, q, today)
-  const sumColumns = { currency: invoices.currency, totalMinor: sql<number>`coalesce(sum(${invoices.totalMinor}), 0)::bigint`, dueMinor: sql<number>`coalesce(sum(case when ${invoices.status} = 'due' then ${invoices.totalMinor} - ${invoices.amountPaidMinor} else 0 end), 0)::bigint` }
+  const sumColumns = { currency: invoices.currency, totalMinor: sql<number>`coalesce(sum(${invoices.totalMinor}), 0)::bigint`, dueMinor: sql<number>`coalesce(sum(case when ${invoices.status} = ${OPEN} then ${invoices.totalMinor} - ${invoices.amountPaidMinor} else 0 end), 0)::bigint` }
   // Counting and summing need the customer join only when searching by name.
   const countQuery = db.select({ n: count() }).from(invoices).$dynamic()
   const sumQuery = db.select(sumColumns).from(invoices).$dynamic()
   if (q.q) for (const query of [countQuery, sumQuery]) query.innerJoin(customers, eq(customers.id, invoices.customerId))
-  const [rows, [total], totals] = await Promise.all([
-    db.select(listColumns).from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId))
-      .where(cond).orderBy(...listOrder(q)).limit(q.pageSize).offset((q.page - 1) * q.pageSize),
+  const [[total], totals] = await Promise.all([
     countQuery.where(cond),
     // What the filtered set adds up to, per currency (a company normally has one).
-    sumQuery.where(cond).groupBy(invoices.currency),
+    sumQuery.where(cond).groupBy(invoices.currency).orderBy(invoices.currency),
+  ])
+  return { total: total?.n ?? 0, sums: totals.map(t => ({ currency: t.currency, totalMinor: Number(t.totalMinor), dueMinor: Number(t.dueMinor) })) }
+}
+
+export async function listInvoices(actor: SessionUser, q: InvoiceListQuery) {
+  const today = await companyToday(actor.companyId)
+  const cond = listWhere(actor, q, today)
+  const [rows, totals] = await Promise.all([
+    useDb().select(listColumns).from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId))
+      .where(cond).orderBy(...listOrder(q)).limit(q.pageSize).offset((q.page - 1) * q.pageSize),
+    listTotalsFromDays(actor, q, today).then(t => t ?? listTotalsFromInvoices(q, cond)),
   ])
   return {
-    rows: rows.map(r => ({ ...r, overdue: r.status === 'due' && r.dueDate != null && r.dueDate < today })),
-    total: total?.n ?? 0, page: q.page, pageSize: q.pageSize, today,
-    sums: totals.map(t => ({ currency: t.currency, totalMinor: Number(t.totalMinor), dueMinor: Number(t.dueMinor) })),
+    rows: rows.map(r => ({ ...r, overdue: r.status === OPEN && r.dueDate != null && r.dueDate < today })),
+    total: totals.total, page: q.page, pageSize: q.pageSize, today, sums: totals.sums,
   }
 }
 

@@ -1,16 +1,22 @@
-import { and, eq, ne, sql } from 'drizzle-orm'
+import { and, eq, inArray, isNotNull, ne, sql } from 'drizzle-orm'
 import { RECEIVABLE_BUCKETS, receivableBucket, daysBetween } from '../../shared/utils/billing'
 import { localToday } from '../../shared/utils/company-time'
 import { revenueFigures, type RevenueContract } from '../../shared/utils/revenue'
-import { companies, contracts, invoices, plans, visits } from '../db/schema'
+import type { InvoiceStatus } from '../../shared/types/billing'
+import { companies, contractPlannedVisits, contracts, invoiceDayTotals, plans } from '../db/schema'
 import { useDb } from '../utils/db'
 
-const outerContract = sql`${sql.identifier('contracts')}.${sql.identifier('id')}`
+/** The invoices still asking for money (receivables). */
+const RECEIVABLE: InvoiceStatus = 'due'
+/** The invoices that count as invoiced revenue (issued and not cancelled or written off), and the paid ones among them. */
+const INVOICED: InvoiceStatus[] = ['due', 'paid']
+const PAID: InvoiceStatus = 'paid'
 
 /**
  * The owner's recurring-revenue view as of a company-local date (today by default): the
  * contract figures from shared/utils/revenue, receivables by age and invoiced revenue by plan.
- * Only the company's own currency is counted.
+ * Only the company's own currency is counted. Invoice figures come from `invoice_day_totals`
+ * and planned visits from `contract_planned_visits`, both kept exact by triggers.
  */
 export async function revenueView(companyId: string, asOfDate?: string) {
   const db = useDb()
@@ -20,30 +26,31 @@ export async function revenueView(companyId: string, asOfDate?: string) {
   const rows = await db.select({
     id: contracts.id, customerId: contracts.customerId, planId: contracts.planId, planName: plans.name, cadence: plans.billingCadence,
     priceMinor: sql<number>`coalesce(${contracts.priceOverrideMinor}, ${plans.priceMinor})`, termMonths: plans.termMonths,
-    plannedVisits: sql<number>`case when ${plans.billingCadence} = 'per_visit' then (select count(*)::int from ${visits} v where v.contract_id = ${outerContract} and v.status <> 'cancelled') else 0 end`,
+    plannedVisits: sql<number>`case when ${plans.billingCadence} = 'per_visit' then coalesce(${contractPlannedVisits.visits}, 0) else 0 end`,
     status: contracts.status, termStart: contracts.termStart, termEnd: contracts.termEnd,
     endedOn: sql<string | null>`to_char(${contracts.endedAt} at time zone ${tz}, 'YYYY-MM-DD')`,
     previousContractId: contracts.previousContractId, autoRenew: contracts.autoRenew,
-  }).from(contracts).innerJoin(plans, eq(plans.id, contracts.planId))
+  }).from(contracts).innerJoin(plans, eq(plans.id, contracts.planId)).leftJoin(contractPlannedVisits, eq(contractPlannedVisits.contractId, contracts.id))
     .where(and(eq(contracts.companyId, companyId), ne(contracts.status, 'draft'), eq(contracts.currency, company!.currency)))
   const list: RevenueContract[] = rows.map(r => ({ ...r, priceMinor: Number(r.priceMinor), plannedVisits: Number(r.plannedVisits) }))
   const figures = revenueFigures(list, asOf, new Map(rows.map(r => [r.id, r.autoRenew])))
 
   // Receivables: what due invoices still ask for, by days past their due date.
-  const due = await db.select({ dueDate: invoices.dueDate, due: sql<number>`(${invoices.totalMinor} - ${invoices.amountPaidMinor})::int` })
-    .from(invoices).where(and(eq(invoices.companyId, companyId), eq(invoices.status, 'due'), eq(invoices.currency, company!.currency)))
+  const t = invoiceDayTotals
+  const due = await db.select({ dueDate: t.dueDate, invoices: sql<number>`sum(${t.invoices})::int`, due: sql<number>`sum(${t.totalMinor} - ${t.amountPaidMinor})::bigint` })
+    .from(t).where(and(eq(t.companyId, companyId), eq(t.status, RECEIVABLE), eq(t.currency, company!.currency))).groupBy(t.dueDate)
   const buckets = new Map(RECEIVABLE_BUCKETS.map(b => [b, { bucket: b, count: 0, amountMinor: 0 }]))
   for (const r of due) {
     const b = buckets.get(receivableBucket(r.dueDate ? daysBetween(r.dueDate, asOf) : 0))!
-    b.count++
+    b.count += Number(r.invoices)
     b.amountMinor += Number(r.due)
   }
 
   // Invoiced (before tax; not cancelled or written off) over the last 12 months, by the contract's plan.
   const since = sql`(${asOf}::date - interval '12 months')::date`
-  const invoiced = await db.select({ planId: plans.id, planName: plans.name, subtotalMinor: sql<number>`sum(${invoices.subtotalMinor})::bigint`, paidMinor: sql<number>`sum(case when ${invoices.status} = 'paid' then ${invoices.subtotalMinor} else 0 end)::bigint` })
-    .from(invoices).innerJoin(contracts, eq(contracts.id, invoices.contractId)).innerJoin(plans, eq(plans.id, contracts.planId))
-    .where(and(eq(invoices.companyId, companyId), sql`${invoices.status} in ('due', 'paid')`, eq(invoices.currency, company!.currency), sql`${invoices.issueDate} > ${since}`, sql`${invoices.issueDate} <= ${asOf}`))
+  const invoiced = await db.select({ planId: plans.id, planName: plans.name, subtotalMinor: sql<number>`sum(${t.subtotalMinor})::bigint`, paidMinor: sql<number>`sum(case when ${t.status} = ${PAID} then ${t.subtotalMinor} else 0 end)::bigint` })
+    .from(t).innerJoin(plans, eq(plans.id, t.planId))
+    .where(and(eq(t.companyId, companyId), inArray(t.status, INVOICED), eq(t.currency, company!.currency), isNotNull(t.planId), sql`${t.issueDate} > ${since}`, sql`${t.issueDate} <= ${asOf}`))
     .groupBy(plans.id, plans.name)
   const invoicedByPlan = new Map(invoiced.map(r => [r.planId, r]))
   const planIds = new Set([...figures.byPlan.map(p => p.planId), ...invoicedByPlan.keys()])

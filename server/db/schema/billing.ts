@@ -65,7 +65,10 @@ export const invoices = pgTable('invoices', {
   uniqueIndex('invoices_number_key').on(t.companyId, t.number),
   uniqueIndex('invoices_provider_key').on(t.providerInvoiceId),
   index('invoices_company_status_due_idx').on(t.companyId, t.status, t.dueDate),
-  index('invoices_company_issue_idx').on(t.companyId, t.issueDate),
+  // The invoices table's sorts, with its tie-break (number, then id), so a page reads only its rows.
+  index('invoices_company_issue_idx').on(t.companyId, t.issueDate, t.numberYear, t.numberSeq, t.id),
+  index('invoices_company_due_idx').on(t.companyId, t.dueDate, t.numberYear, t.numberSeq, t.id),
+  index('invoices_company_total_idx').on(t.companyId, t.totalMinor, t.numberYear, t.numberSeq, t.id),
   index('invoices_customer_idx').on(t.customerId),
   index('invoices_contract_idx').on(t.contractId),
 ])
