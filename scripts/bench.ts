@@ -311,7 +311,7 @@ const WHY = [
   'Sign-in is slow on purpose: argon2id with 19 MiB and two passes per attempt (OWASP\'s minimum) costs tens of milliseconds of CPU each; it has no read budget.',
   'A feature\'s year of readings: the series route evaluates ranges and builds the chart series (bands, visit and dose markers) in JavaScript for every request; caching the built series per feature until its next reading is the next step.',
   'The alert scan reads every new reading in one run, in batches of whole features: the previous reading of each comes from one lateral query per batch, the alerts of a batch are loaded with one query and written with one multi-row insert and one multi-row update. The e-mails of `act` alerts are still queued per feature (a few queries each).',
-  'Renewals: each renewal is its own transaction that also expands the plan\'s recurrence into the new term\'s visits (about a dozen inserts) and raises its invoice; that keeps a crash from losing or doubling work but costs round trips. Renewing in batches of contracts per transaction would cut it several times.',
+  'Renewals: renewed in batches of 200 contracts per transaction (one insert of the new terms, one insert … select of their features, one audit insert) with one planner run per batch for all their new visits; each contract\'s visits are still worked out with a handful of queries of its own, the planner still weighs every booked visit of the term in each run, and each invoice is still its own transaction. Those are the next steps.',
   'Page weight: the schedule board and Today load the charts library or the board grid on first load; splitting the echarts chunk out of pages that do not draw charts is the next step.',
 ]
 
