@@ -14,7 +14,13 @@ export interface AuditEntry {
 
 /** Appends to the audit log, inside the caller's transaction when one is given. */
 export async function recordAudit(db: Database | Tx, entry: AuditEntry) {
-  await db.insert(auditLog).values({
+  await recordAudits(db, [entry])
+}
+
+/** Appends many entries with one statement (batch jobs). */
+export async function recordAudits(db: Database | Tx, entries: readonly AuditEntry[]) {
+  if (!entries.length) return
+  await db.insert(auditLog).values(entries.map(entry => ({
     action: entry.action,
     companyId: entry.companyId ?? null,
     actorUserId: entry.actorUserId ?? null,
@@ -22,7 +28,7 @@ export async function recordAudit(db: Database | Tx, entry: AuditEntry) {
     subjectId: entry.subjectId,
     detail: entry.detail ?? {},
     ip: entry.ip ?? null,
-  })
+  })))
 }
 
 export async function listAudit(companyId: string, q: { page: number, pageSize: number, subjectId?: string, action?: string }) {

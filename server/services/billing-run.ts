@@ -6,11 +6,13 @@ import { companies, contracts, invoices, plans, taskRuns, visits } from '../db/s
 import { useDb, withSessionLock, type Tx } from '../utils/db'
 import { paymentsConfigured } from '../utils/payments'
 import { recordAudit } from './audit'
-import { renewInTx } from './contracts'
+import { renewManyInTx } from './contracts'
 import { syncInvoiceToProvider } from './invoice-payments'
 import { finalizeInTx, insertDraft, queueInvoiceMail, sendInTx, type NewInvoice } from './invoices'
 
 export const BILLING_TASK = 'billing:renew'
+/** Contracts renewed per transaction (and per planner run). */
+const RENEWAL_BATCH = 200
 
 export interface BillingRunOptions {
   /** Only this company (tests, the owner's "run now"); every company otherwise. */
@@ -111,9 +113,11 @@ async function billingRun(opts: BillingRunOptions) {
         lte(contracts.termEnd, addDays(today, RENEWAL_LEAD_DAYS - 1)),
         notExists(db.select({ x: sql`1` }).from(sql`contracts as next`).where(sql`next.previous_contract_id = ${contracts.id}`))))
       .orderBy(asc(contracts.termEnd), asc(contracts.id))
-    for (const c of renewable) {
-      const r = await unit(`contract ${c.id}`, () => db.transaction(tx => renewInTx(tx, c.id, { actorUserId: null, ip: null, clock })))
-      if (r) summary.renewed++
+    // In batches: each batch is one transaction (all its renewals or none), planned together.
+    for (let i = 0; i < renewable.length; i += RENEWAL_BATCH) {
+      const batch = renewable.slice(i, i + RENEWAL_BATCH).map(c => c.id)
+      const r = await unit(batch.length === 1 ? `contract ${batch[0]}` : `contracts ${batch[0]} … ${batch.at(-1)} (${batch.length})`, () => db.transaction(tx => renewManyInTx(tx, batch, { clock })))
+      if (r) summary.renewed += r.length
     }
 
     // 2. End terms that are over (renewed or not).

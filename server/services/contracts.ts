@@ -8,8 +8,8 @@ import { ownCustomerId, type SessionUser } from '../utils/auth'
 import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { containsPattern } from '../utils/like'
-import { recordAudit } from './audit'
-import { cancelFutureVisits, regenerateContractVisits, type GenerationClock } from './visit-generation'
+import { recordAudit, recordAudits } from './audit'
+import { cancelFutureVisits, regenerateContractVisits, regenerateManyContractVisits, type GenerationClock } from './visit-generation'
 
 function scope(actor: SessionUser): SQL[] {
   const where: SQL[] = [eq(contracts.companyId, actor.companyId)]
@@ -197,4 +197,39 @@ export async function renewInTx(tx: Tx, id: string, opts: { actorUserId: string 
   await recordAudit(tx, { ...base, subjectId: id, action: 'contract.renew', detail: { next: next!.id, termStart } })
   await recordAudit(tx, { ...base, subjectId: next!.id, action: 'contract.created', detail: { renews: id } })
   return { id: next!.id, termStart, visits: await regenerateContractVisits(tx, next!.id, opts.clock) }
+}
+
+/**
+ * Renews a batch of contracts (the billing job) in the caller's transaction, with a few
+ * statements for the batch: the terms are locked, the next terms inserted in one statement (the
+ * unique index on `previous_contract_id` skips any already renewed, by whoever), their features
+ * copied with one `insert … select`, the audit written in one statement, and the new terms'
+ * visits planned together (one planner run per company). Returns the renewals made.
+ */
+export async function renewManyInTx(tx: Tx, ids: readonly string[], opts: { clock?: GenerationClock } = {}) {
+  if (!ids.length) return []
+  const prevs = await tx.select({ contract: contracts, termMonths: plans.termMonths }).from(contracts).innerJoin(plans, eq(plans.id, contracts.planId))
+    .where(inArray(contracts.id, [...ids])).orderBy(asc(contracts.id)).for('update', { of: contracts })
+  if (!prevs.length) return []
+  const activatedAt = opts.clock?.now ?? new Date()
+  const made = await tx.insert(contracts).values(prevs.map(({ contract: prev, termMonths }) => {
+    const termStart = addDays(prev.termEnd, 1)
+    return {
+      companyId: prev.companyId, customerId: prev.customerId, planId: prev.planId, status: 'active' as const,
+      termStart, termEnd: termEndFor(termStart, termMonths), priceOverrideMinor: prev.priceOverrideMinor,
+      currency: prev.currency, autoRenew: prev.autoRenew, previousContractId: prev.id, notes: prev.notes, activatedAt,
+    }
+  })).onConflictDoNothing({ target: contracts.previousContractId }).returning({ id: contracts.id, previousId: contracts.previousContractId, companyId: contracts.companyId, termStart: contracts.termStart })
+  if (!made.length) return []
+  const newIds = made.map(m => m.id)
+  await tx.execute(sql`
+    insert into contract_features (contract_id, feature_id, position)
+    select n.id, f.feature_id, f.position from contracts n join contract_features f on f.contract_id = n.previous_contract_id
+    where n.id in ${sql`(${sql.join(newIds.map(id => sql`${id}::uuid`), sql`, `)})`}`)
+  await recordAudits(tx, made.flatMap(m => [
+    { companyId: m.companyId, actorUserId: null, subjectType: 'contract', ip: null, subjectId: m.previousId!, action: 'contract.renew', detail: { next: m.id, termStart: m.termStart } },
+    { companyId: m.companyId, actorUserId: null, subjectType: 'contract', ip: null, subjectId: m.id, action: 'contract.created', detail: { renews: m.previousId } },
+  ]))
+  const visitsOf = await regenerateManyContractVisits(tx, newIds, opts.clock)
+  return made.map(m => ({ id: m.id, previousId: m.previousId!, termStart: m.termStart, visits: visitsOf.get(m.id) }))
 }

@@ -42,9 +42,67 @@ export interface GenerationClock { now?: Date }
  * skipped and manually moved visits alone. Runs inside the caller's transaction and locks the
  * contract row, so two regenerations cannot interleave.
  */
-export async function regenerateContractVisits(tx: Tx, contractId: string, clock: GenerationClock = {}) {
+export async function regenerateContractVisits(tx: Tx, contractId: string, clock: GenerationClock = {}): Promise<GenerationResult> {
+  const g = await prepareGeneration(tx, contractId, clock)
+  if (!g) return { inserted: 0, rescheduled: 0, cancelled: 0, unplaced: [] }
+  const placement = g.toPlace.length
+    ? await placeNewVisits(tx, g.company, g.term, g.closed, g.toPlace, { replacingVisitIds: g.replacingVisitIds, ...(g.keeper && { previousAssignments: { [g.customerId]: g.keeper } }) })
+    : new Map<string, VisitPlacement>()
+  return g.finish(placement)
+}
+
+/**
+ * The same for many contracts (a batch of renewals): each contract's visits are worked out as
+ * above, but the planner runs once per company for all of them together, so the new visits of
+ * the batch share the technicians' capacity as one plan (never a technician-day over capacity,
+ * a reason for each visit left unplaced) instead of one planner run per contract.
+ */
+export async function regenerateManyContractVisits(tx: Tx, contractIds: readonly string[], clock: GenerationClock = {}): Promise<Map<string, GenerationResult>> {
+  const prepared: Prepared[] = []
+  for (const id of contractIds) {
+    const g = await prepareGeneration(tx, id, clock)
+    if (g) prepared.push(g)
+  }
+  const out = new Map<string, GenerationResult>()
+  const byCompany = new Map<string, Prepared[]>()
+  for (const g of prepared) byCompany.set(g.company.id, [...(byCompany.get(g.company.id) ?? []), g])
+  for (const group of byCompany.values()) {
+    const toPlace = group.flatMap(g => g.toPlace.map(v => ({ ...v, key: `${g.contractId}|${v.key}` })))
+    const previousAssignments: Record<string, string> = {}
+    for (const g of group) if (g.keeper && !(g.customerId in previousAssignments)) previousAssignments[g.customerId] = g.keeper
+    const term = { start: group.map(g => g.term.start).sort()[0]!, end: group.map(g => g.term.end).sort().at(-1)! }
+    const placed = toPlace.length
+      ? await placeNewVisits(tx, group[0]!.company, term, [...new Set(group.flatMap(g => g.closed))].sort(), toPlace, { replacingVisitIds: group.flatMap(g => g.replacingVisitIds), previousAssignments })
+      : new Map<string, VisitPlacement>()
+    for (const g of group) {
+      const mine = new Map<string, VisitPlacement>()
+      const prefix = `${g.contractId}|`
+      for (const [key, p] of placed) if (key.startsWith(prefix)) mine.set(key.slice(prefix.length), p)
+      out.set(g.contractId, await g.finish(mine))
+    }
+  }
+  return out
+}
+
+export interface GenerationResult { inserted: number, rescheduled: number, cancelled: number, unplaced: Array<{ visitId: string, day: LocalDate, reason: string }> }
+
+interface Prepared {
+  contractId: string
+  customerId: string
+  company: typeof companies.$inferSelect
+  term: { start: LocalDate, end: LocalDate }
+  closed: LocalDate[]
+  toPlace: VisitToPlace[]
+  replacingVisitIds: string[]
+  keeper: string | null
+  /** Writes the visits once the planner has placed `toPlace`. */
+  finish: (placement: Map<string, VisitPlacement>) => Promise<GenerationResult>
+}
+
+/** Everything of one contract's regeneration up to the planner: what to insert, move, cancel, and what to place. */
+async function prepareGeneration(tx: Tx, contractId: string, clock: GenerationClock): Promise<Prepared | null> {
   const [contract] = await tx.select().from(contracts).where(eq(contracts.id, contractId)).for('update').limit(1)
-  if (!contract) return { inserted: 0, rescheduled: 0, cancelled: 0, unplaced: [] }
+  if (!contract) return null
   const [company] = await tx.select().from(companies).where(eq(companies.id, contract.companyId)).limit(1)
   // One connection inside a transaction: run the reads one after another.
   const templates = await tx.select().from(planVisitTemplates).where(eq(planVisitTemplates.planId, contract.planId)).orderBy(asc(planVisitTemplates.position))
@@ -91,16 +149,11 @@ export async function regenerateContractVisits(tx: Tx, contractId: string, clock
     const w = plannedByKey.get(key)!
     return { key, earliest: w.earliest, latest: w.latest, preferred: date, durationMinutes: template.get(w.templateId)!.durationMinutes, siteId: w.siteId, customerId: contract.customerId }
   })
-  let placement = new Map<string, VisitPlacement>()
-  if (toPlace.length) {
-    const keeper = await customerTechnician(tx, contract.companyId, contract.customerId, { start: contract.termStart, end: contract.termEnd })
+  const keeper = toPlace.length
+    ? await customerTechnician(tx, contract.companyId, contract.customerId, { start: contract.termStart, end: contract.termEnd })
       ?? (contract.previousContractId ? await previousTermTechnician(tx, contract) : null)
-    placement = await placeNewVisits(tx, company!, { start: contract.termStart, end: contract.termEnd }, closed.map(c => c.day), toPlace, {
-      replacingVisitIds: replanned.map(m => m.id),
-      ...(keeper && { previousAssignments: { [contract.customerId]: keeper } }),
-    })
-  }
-
+    : null
+  const finish = async (placement: Map<string, VisitPlacement>): Promise<GenerationResult> => {
   /** Visits the planner could not place: they wait unassigned on their preferred day, with the reason. */
   const unplaced: Array<{ visitId: string, day: LocalDate, reason: string }> = []
   if (r.insert.length) {
@@ -139,6 +192,11 @@ export async function regenerateContractVisits(tx: Tx, contractId: string, clock
       .where(inArray(visits.id, r.cancel))
   }
   return { inserted: r.insert.length, rescheduled: r.reschedule.length, cancelled: r.cancel.length, unplaced }
+  }
+  return {
+    contractId, customerId: contract.customerId, company: company!, term: { start: contract.termStart, end: contract.termEnd }, closed: closed.map(c => c.day),
+    toPlace, replacingVisitIds: replanned.map(m => m.id), keeper, finish,
+  }
 }
 
 /** Who did most of the customer's visits in the term this contract renews. */
