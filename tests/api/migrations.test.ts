@@ -88,14 +88,17 @@ describe('migrations', () => {
       await migrate(drizzle(pool), { migrationsFolder: folder })
       const c = await pool.connect()
       try {
-        // Only the invoices and the audit log matter here: skip the foreign keys for these inserts.
-        await c.query('SET session_replication_role = replica')
+        // A real company and customer (later migrations keep totals per company), then invoices in every old state.
+        const { rows: [co] } = await c.query(`insert into companies (name) values ('Migration Pond Care') returning id`)
+        const { rows: [cu] } = await c.query(`insert into customers (company_id, name) values ($1, 'Migration Customer') returning id`, [co.id])
         const old = ['draft', 'open', 'paid', 'void', 'uncollectible']
         for (const [i, status] of old.entries()) {
           await c.query(`insert into invoices (company_id, customer_id, source, currency, tax_rate_bp, status, number, voided_at, uncollectible_at)
-            values (gen_random_uuid(), gen_random_uuid(), 'manual', 'USD', 725, $1, $2, $3, $4)`,
-          [status, status === 'draft' ? null : `2026-00${i}`, status === 'void' ? '2026-05-01T10:00:00Z' : null, status === 'uncollectible' ? '2026-06-01T10:00:00Z' : null])
+            values ($5, $6, 'manual', 'USD', 725, $1, $2, $3, $4)`,
+          [status, status === 'draft' ? null : `2026-00${i}`, status === 'void' ? '2026-05-01T10:00:00Z' : null, status === 'uncollectible' ? '2026-06-01T10:00:00Z' : null, co.id, cu.id])
         }
+        // Only the audit log matters here: skip its foreign keys for these inserts.
+        await c.query('SET session_replication_role = replica')
         for (const action of ['invoice.finalize', 'invoice.send', 'invoice.void', 'invoice.mark_uncollectible', 'invoice.record_payment', 'invoice.created']) {
           await c.query(`insert into audit_log (action, subject_type, subject_id) values ($1, 'invoice', 'x')`, [action])
         }
@@ -120,6 +123,9 @@ describe('migrations', () => {
         const audit = await d.query(`select action, detail from audit_log order by id`)
         expect(audit.rows.map(r => r.action)).toEqual(['invoice.issued', 'invoice.sent', 'invoice.cancelled', 'invoice.written_off', 'invoice.payment_recorded', 'invoice.created', 'invoice.paid_while_closed'])
         expect(audit.rows[6].detail).toEqual({ status: 'cancelled', eventId: 'evt_1' })
+        // The revenue totals (a later migration) are back-filled from these invoices, in the new words.
+        const totals = await d.query(`select status::text, sum(invoices)::int as n from invoice_day_totals group by 1 order by 1`)
+        expect(totals.rows).toEqual([{ status: 'cancelled', n: 1 }, { status: 'due', n: 1 }, { status: 'paid', n: 1 }, { status: 'preparing', n: 1 }, { status: 'written_off', n: 1 }])
         // A new invoice starts out being prepared.
         const def = await d.query(`select column_default from information_schema.columns where table_name = 'invoices' and column_name = 'status'`)
         expect(def.rows[0].column_default).toContain('preparing')
