@@ -1,11 +1,12 @@
-import { and, asc, eq, gte, type SQL } from 'drizzle-orm'
+import { and, asc, eq, gte, sql, type SQL } from 'drizzle-orm'
 import { DateTime } from 'luxon'
 import type { RangeTable } from '../../shared/types/water'
 import { PARAMETER_CATALOGUE, READING_KEYS, type ReadingKey } from '../../shared/utils/water/parameters'
 import type { VisitType } from '../../shared/types/schedule'
-import { companies, doses, readings, visits } from '../db/schema'
+import { doses, readings, visits, waterFeatures } from '../db/schema'
 import type { SessionUser } from '../utils/auth'
 import { useDb } from '../utils/db'
+import { readerContext } from './company'
 import { getFeature } from './features'
 
 /** Time windows of the trend charts. */
@@ -57,17 +58,17 @@ export function thin<T>(points: T[], max = MAX_POINTS): T[] {
 /**
  * A feature's readings as one time series per parameter, with its ranges, visits and doses, for
  * the trend charts. Tenancy through getFeature (404 outside the caller's reach). Readings come
- * from one range scan of `readings_feature_taken_idx`, ordered by time.
+ * from one range scan of `readings_feature_taken_idx`, visits from `visits_site_date_idx`.
  */
 export async function featureSeries(
   actor: SessionUser, featureId: string,
   q: { range: SeriesRange, parameters?: ChartParameter[] },
   now: Date = new Date(),
 ): Promise<FeatureSeries> {
-  const feature = await getFeature(actor, featureId)
+  // The company's time zone comes with the session (readerContext); the feature's site is read
+  // inside the visits query, so the feature (tenancy, ranges) and the three lists load at once.
+  const { timeZone } = await readerContext(actor)
   const db = useDb()
-  const [company] = await db.select({ tz: companies.timeZone }).from(companies).where(eq(companies.id, actor.companyId)).limit(1)
-  const timeZone = company?.tz ?? 'UTC'
   const from = windowStart(q.range, timeZone, now)
   const keys: ChartParameter[] = q.parameters?.length ? CHART_PARAMETERS.filter(k => q.parameters!.includes(k)) : [...CHART_PARAMETERS]
 
@@ -75,12 +76,15 @@ export async function featureSeries(
   if (from) readingWhere.push(gte(readings.takenAt, from))
   const columns = Object.fromEntries(keys.map(k => [k, readings[k]])) as Record<ChartParameter, typeof readings.pH>
 
-  const visitWhere: SQL[] = [eq(visits.siteId, feature.siteId), eq(visits.companyId, actor.companyId), eq(visits.status, 'done')]
+  const siteOfFeature = db.select({ id: waterFeatures.siteId }).from(waterFeatures).where(and(eq(waterFeatures.id, featureId), eq(waterFeatures.companyId, actor.companyId)))
+  const visitWhere: SQL[] = [eq(visits.siteId, sql`(${siteOfFeature})`), eq(visits.companyId, actor.companyId), eq(visits.status, 'done')]
   if (from) visitWhere.push(gte(visits.scheduledOn, DateTime.fromJSDate(from, { zone: timeZone }).toISODate()!))
   const doseWhere: SQL[] = [eq(doses.featureId, featureId), eq(doses.companyId, actor.companyId)]
   if (from) doseWhere.push(gte(doses.dosedAt, from))
 
-  const [rows, visitRows, doseRows] = await Promise.all([
+  // getFeature answers 404 outside the caller's reach; the lists are then never returned.
+  const [feature, rows, visitRows, doseRows] = await Promise.all([
+    getFeature(actor, featureId),
     db.select({ takenAt: readings.takenAt, ...columns }).from(readings).where(and(...readingWhere)).orderBy(asc(readings.takenAt)),
     db.select({ date: visits.scheduledOn, type: visits.visitType, startedAt: visits.startedAt, finishedAt: visits.finishedAt, startsAt: visits.startsAt })
       .from(visits).where(and(...visitWhere)).orderBy(asc(visits.scheduledOn)).limit(MAX_MARKERS),

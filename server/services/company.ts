@@ -2,9 +2,10 @@ import { and, asc, eq, gte } from 'drizzle-orm'
 import type { ClosedDaysInput, CompanyUpdateInput } from '../../shared/schemas/company'
 import { localToday } from '../../shared/utils/company-time'
 import { closedDays, companies, contracts, users } from '../db/schema'
-import type { SessionUser } from '../utils/auth'
+import type { ReaderContext, SessionUser } from '../utils/auth'
 import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
+import { notifySessionsChanged } from '../utils/session-cache'
 import { recordAudit } from './audit'
 import { regenerateContractVisits } from './visit-generation'
 
@@ -18,17 +19,20 @@ const columns = {
 
 /**
  * What a sentence for this person needs from the company: the units they read in (their own
- * choice, else the company's), the company's own units, and the number to call (empty: none).
+ * choice, else the company's), the company's own units, the number to call (empty: none) and the
+ * company's time zone.
  */
-export async function readerContext(actor: Pick<SessionUser, 'id' | 'companyId'>) {
-  const [row] = await useDb().select({ companyUnitSystem: companies.unitSystem, own: users.unitSystem, phone: companies.phone, companyName: companies.name })
+export async function readerContext(actor: Pick<SessionUser, 'id' | 'companyId' | 'reader'>): Promise<ReaderContext> {
+  // The signed-in user's session lookup already read it (kept current by the session cache's evictions).
+  if (actor.reader) return actor.reader
+  const [row] = await useDb().select({ companyUnitSystem: companies.unitSystem, own: users.unitSystem, phone: companies.phone, companyName: companies.name, timeZone: companies.timeZone })
     .from(companies).leftJoin(users, and(eq(users.id, actor.id), eq(users.companyId, companies.id))).where(eq(companies.id, actor.companyId)).limit(1)
   if (!row) throw httpError(404, 'No such company')
-  return { unitSystem: row.own ?? row.companyUnitSystem, companyUnitSystem: row.companyUnitSystem, phone: row.phone, companyName: row.companyName }
+  return { unitSystem: row.own ?? row.companyUnitSystem, companyUnitSystem: row.companyUnitSystem, phone: row.phone, companyName: row.companyName, timeZone: row.timeZone }
 }
 
 /** The units a person reads in, for a schema's messages (a limit quoted in the unit they typed). */
-export async function unitSystemOf(actor: Pick<SessionUser, 'id' | 'companyId'>) {
+export async function unitSystemOf(actor: Pick<SessionUser, 'id' | 'companyId' | 'reader'>) {
   return (await readerContext(actor)).unitSystem
 }
 
@@ -43,6 +47,8 @@ export async function getCompany(actor: SessionUser) {
 export async function updateCompany(actor: SessionUser, input: CompanyUpdateInput, ip: string) {
   await useDb().transaction(async (tx) => {
     await tx.update(companies).set(input).where(eq(companies.id, actor.companyId))
+    // Units, phone and name travel with every session of the company (session cache, every instance).
+    await notifySessionsChanged(tx, { companyId: actor.companyId })
     await recordAudit(tx, { action: 'settings.changed', companyId: actor.companyId, actorUserId: actor.id, subjectType: 'company', subjectId: actor.companyId, ip, detail: input })
     // The working week and start time shape every generated visit: bring future ones in line.
     if (input.workingDays || input.dayStartTime || input.timeZone) await regenerateActiveContracts(tx, actor.companyId)

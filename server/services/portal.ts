@@ -9,6 +9,7 @@ import { ownCustomerId, type SessionUser } from '../utils/auth'
 import { useDb } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { recordAudit } from './audit'
+import { notifySessionsChanged } from '../utils/session-cache'
 import { readerContext } from './company'
 import { rangesFor } from './features'
 import { evaluateAtSite, measuredValues, readingRow, upsertReading } from './readings'
@@ -166,7 +167,11 @@ export async function updatePreferences(actor: SessionUser, input: PreferencesIn
     if (bad > -1) throw httpError(400, `Invalid body: contacts.${bad}.id — not one of your contacts`, { fields: { [`contacts.${bad}.id`]: 'Not one of your contacts' } })
   }
   await db.transaction(async (tx) => {
-    if (input.unitSystem !== undefined) await tx.update(users).set({ unitSystem: input.unitSystem }).where(eq(users.id, actor.id))
+    if (input.unitSystem !== undefined) {
+      await tx.update(users).set({ unitSystem: input.unitSystem }).where(eq(users.id, actor.id))
+      // The units travel with the session (session cache, every instance).
+      await notifySessionsChanged(tx, { userId: actor.id })
+    }
     for (const c of input.contacts ?? []) {
       await tx.update(customerContacts).set({ getsReports: c.getsReports, getsInvoices: c.getsInvoices, getsAlerts: c.getsAlerts }).where(and(eq(customerContacts.id, c.id), eq(customerContacts.customerId, customerId)))
     }

@@ -65,6 +65,22 @@ const visitColumns = {
   siteLatitude: sites.latitude, siteLongitude: sites.longitude,
 }
 
+/**
+ * dayLoad is pure but costly (the stops' driving order: ~15 ms for 40 stops), and a board asks for
+ * every technician-day of its range on each load. Its answers are kept by their exact inputs, so
+ * an entry can never be stale: a moved, added or re-timed stop, or a new home, is a new key.
+ */
+const dayLoads = new Map<string, DayLoad>()
+function rememberedDayLoad(stops: DayLoadStop[], home: { lat: number, lon: number } | null, capacityMinutes: number): DayLoad {
+  const key = `${home ? `${home.lat},${home.lon}` : '-'}|${capacityMinutes}|${stops.map(s => `${s.id}:${s.durationMinutes}:${s.lat}:${s.lon}`).join(';')}`
+  const known = dayLoads.get(key)
+  if (known) return { ...known }
+  const load = dayLoad(stops, home, capacityMinutes)
+  if (dayLoads.size >= 20_000) dayLoads.clear()
+  dayLoads.set(key, load)
+  return { ...load }
+}
+
 /** Visits between two dates for the week and month boards, with each technician's load per day (driving included). */
 export async function board(actor: SessionUser, q: { from: string, to: string, technicianId?: string, visitType?: VisitType, includeCancelled: boolean }) {
   const db = useDb()
@@ -95,7 +111,7 @@ export async function board(actor: SessionUser, q: { from: string, to: string, t
     for (const [tid, stops] of perTech) {
       const t = techById.get(tid)
       const home = t?.homeLatitude != null && t.homeLongitude != null ? { lat: t.homeLatitude, lon: t.homeLongitude } : null
-      load[day][tid] = dayLoad(stops, home, t?.capacityMinutes ?? DEFAULT_CAPACITY_MINUTES)
+      load[day][tid] = rememberedDayLoad(stops, home, t?.capacityMinutes ?? DEFAULT_CAPACITY_MINUTES)
     }
   }
   return { from: q.from, to: q.to, visits: rows, technicians, load, unassigned: rows.filter(v => !v.technicianId && v.status === 'scheduled').length }

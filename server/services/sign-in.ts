@@ -4,6 +4,7 @@ import type { SignInInput } from '../../shared/schemas/auth'
 import { hashPassword, verifyPassword } from '../utils/password'
 import { useDb } from '../utils/db'
 import { httpError } from '../utils/errors'
+import { notifySessionsChanged } from '../utils/session-cache'
 import { recordAudit } from './audit'
 
 const env = (name: string, fallback: number) => Number(process.env[name] || fallback)
@@ -76,6 +77,10 @@ export async function checkCredentials(input: SignInInput, ip: string) {
   return user!
 }
 
+/** Sign-out: ends one session, and every instance forgets it (session cache). */
 export async function endSession(sessionId: string) {
-  await useDb().update(sessions).set({ revokedAt: new Date() }).where(eq(sessions.id, sessionId))
+  await useDb().transaction(async (tx) => {
+    await tx.update(sessions).set({ revokedAt: new Date() }).where(eq(sessions.id, sessionId))
+    await notifySessionsChanged(tx, { sessionId })
+  })
 }

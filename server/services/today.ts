@@ -1,12 +1,29 @@
 import { and, asc, eq, inArray, ne } from 'drizzle-orm'
 import { localToday } from '../../shared/utils/company-time'
-import { orderStops, routeLegs } from '../../shared/utils/route-order'
+import { orderStops, routeLegs, type RouteCoordinate } from '../../shared/utils/route-order'
 import { companies, customers, sites, staffProfiles, users, visits } from '../db/schema'
 import type { SessionUser } from '../utils/auth'
 import { useDb } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { recordAudit } from './audit'
+import { readerContext } from './company'
 import { featuresForVisits } from './schedule'
+
+/**
+ * The driving order is pure but costly for a long day (an exact or heuristic search over the
+ * stops), and Today is opened again and again. Orders are kept by their exact inputs (home and
+ * each stop's id and place), so an entry cannot be stale: any change is a new key.
+ */
+const orders = new Map<string, string[]>()
+function rememberedOrder(home: RouteCoordinate, stops: Array<{ id: string, lat: number, lon: number }>): string[] {
+  const key = `${home.lat},${home.lon}|${stops.map(s => `${s.id}:${s.lat}:${s.lon}`).join(';')}`
+  const known = orders.get(key)
+  if (known) return [...known]
+  const order = orderStops(home, stops)
+  if (orders.size >= 20_000) orders.clear()
+  orders.set(key, order)
+  return [...order]
+}
 
 /**
  * A technician's day: their visits in driving order from their home base (or the company's
@@ -16,22 +33,26 @@ import { featuresForVisits } from './schedule'
 export async function technicianDay(actor: SessionUser, q: { date?: string, technicianId?: string }) {
   const db = useDb()
   const technicianId = actor.role === 'owner' && q.technicianId ? q.technicianId : actor.id
-  const [company] = await db.select().from(companies).where(eq(companies.id, actor.companyId)).limit(1)
-  const date = q.date ?? localToday(company!.timeZone)
-  const [tech] = await db.select({ id: users.id, name: users.name, homeLatitude: staffProfiles.homeLatitude, homeLongitude: staffProfiles.homeLongitude })
-    .from(users).leftJoin(staffProfiles, eq(staffProfiles.userId, users.id))
-    .where(and(eq(users.id, technicianId), eq(users.companyId, actor.companyId))).limit(1)
+  // The date from the company's time zone (read with the session), so the company, the
+  // technician and the visits load at once.
+  const { timeZone } = await readerContext(actor)
+  const date = q.date ?? localToday(timeZone)
+  const [[company], [tech], rows] = await Promise.all([
+    db.select({ baseLatitude: companies.baseLatitude, baseLongitude: companies.baseLongitude }).from(companies).where(eq(companies.id, actor.companyId)).limit(1),
+    db.select({ id: users.id, name: users.name, homeLatitude: staffProfiles.homeLatitude, homeLongitude: staffProfiles.homeLongitude })
+      .from(users).leftJoin(staffProfiles, eq(staffProfiles.userId, users.id))
+      .where(and(eq(users.id, technicianId), eq(users.companyId, actor.companyId))).limit(1),
+    db.select({
+      id: visits.id, status: visits.status, visitType: visits.visitType, durationMinutes: visits.durationMinutes, startsAt: visits.startsAt,
+      routePosition: visits.routePosition, contractId: visits.contractId, checklist: visits.checklist,
+      customerId: customers.id, customerName: customers.name,
+      siteId: sites.id, siteName: sites.name, line1: sites.line1, city: sites.city, lat: sites.latitude, lon: sites.longitude,
+      accessNotes: sites.accessNotes, gateCode: sites.gateCode, hazards: sites.hazards, hazardNotes: sites.hazardNotes,
+    }).from(visits).innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
+      .where(and(eq(visits.companyId, actor.companyId), eq(visits.technicianId, technicianId), eq(visits.scheduledOn, date), ne(visits.status, 'cancelled')))
+      .orderBy(asc(visits.startsAt), asc(visits.id)).limit(60),
+  ])
   if (!tech) throw httpError(404, 'No such technician')
-
-  const rows = await db.select({
-    id: visits.id, status: visits.status, visitType: visits.visitType, durationMinutes: visits.durationMinutes, startsAt: visits.startsAt,
-    routePosition: visits.routePosition, contractId: visits.contractId, checklist: visits.checklist,
-    customerId: customers.id, customerName: customers.name,
-    siteId: sites.id, siteName: sites.name, line1: sites.line1, city: sites.city, lat: sites.latitude, lon: sites.longitude,
-    accessNotes: sites.accessNotes, gateCode: sites.gateCode, hazards: sites.hazards, hazardNotes: sites.hazardNotes,
-  }).from(visits).innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
-    .where(and(eq(visits.companyId, actor.companyId), eq(visits.technicianId, technicianId), eq(visits.scheduledOn, date), ne(visits.status, 'cancelled')))
-    .orderBy(asc(visits.startsAt), asc(visits.id)).limit(60)
 
   const home = tech.homeLatitude != null && tech.homeLongitude != null
     ? { lat: tech.homeLatitude, lon: tech.homeLongitude }
@@ -40,7 +61,7 @@ export async function technicianDay(actor: SessionUser, q: { date?: string, tech
   const handOrdered = rows.some(r => r.routePosition != null)
   let order: string[]
   if (handOrdered) order = [...rows].sort((a, b) => (a.routePosition ?? 999) - (b.routePosition ?? 999)).map(r => r.id)
-  else if (home && located.length) order = [...orderStops(home, located.map(r => ({ id: r.id, lat: r.lat!, lon: r.lon! }))), ...rows.filter(r => r.lat == null || r.lon == null).map(r => r.id)]
+  else if (home && located.length) order = [...rememberedOrder(home, located.map(r => ({ id: r.id, lat: r.lat!, lon: r.lon! }))), ...rows.filter(r => r.lat == null || r.lon == null).map(r => r.id)]
   else order = rows.map(r => r.id)
 
   const byId = new Map(rows.map(r => [r.id, r]))
@@ -62,7 +83,7 @@ export async function technicianDay(actor: SessionUser, q: { date?: string, tech
   })
   const workMinutes = rows.reduce((s, r) => s + r.durationMinutes, 0)
   return {
-    date, timeZone: company!.timeZone, technician: { id: tech.id, name: tech.name }, home,
+    date, timeZone, technician: { id: tech.id, name: tech.name }, home,
     handOrdered, stops, totalKm: legs.totalKm, driveMinutes: legs.totalMinutes, workMinutes,
     expectedEnd: clock,
   }

@@ -3,6 +3,7 @@ import type { UserCreateInput, UserUpdateInput } from '../../shared/schemas/user
 import type { Role } from '../../shared/utils/roles'
 import { customers, users } from '../db/schema'
 import { revokeUserSessions, type SessionUser } from '../utils/auth'
+import { notifySessionsChanged } from '../utils/session-cache'
 import { hashPassword } from '../utils/password'
 import { useDb } from '../utils/db'
 import { httpError } from '../utils/errors'
@@ -98,6 +99,10 @@ export async function updateUser(actor: SessionUser, id: string, input: UserUpda
     // Deactivation, a new password or a new role ends every open session of that user.
     if (input.active === false || passwordHash || (input.role && input.role !== before.role)) {
       await revokeUserSessions(id, tx)
+    }
+    else {
+      // A new name: signed-in pages show it at once (session cache, every instance).
+      await notifySessionsChanged(tx, { userId: id })
     }
   })
   return getUser(actor, id)

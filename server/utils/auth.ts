@@ -2,9 +2,11 @@ import { createHash, randomBytes } from 'node:crypto'
 import { and, eq, gt, isNull } from 'drizzle-orm'
 import type { H3Event } from 'h3'
 import { can, type Permission, type Role } from '../../shared/utils/roles'
-import { sessions, users } from '../db/schema'
-import { useDb } from './db'
+import type { UnitSystem } from '../../shared/utils/water/format'
+import { companies, sessions, users } from '../db/schema'
+import { useDb, type Database, type Tx } from './db'
 import { httpError } from './errors'
+import { cachedSession, lookupMark, notifySessionsChanged, storeSession } from './session-cache'
 
 export interface SessionUser {
   id: string
@@ -14,7 +16,14 @@ export interface SessionUser {
   companyId: string
   customerId: string | null
   sessionId: string
+  /**
+   * What a sentence for this person needs from the company (see readerContext in
+   * services/company.ts), read with the session so a request does not read the company again.
+   */
+  reader?: ReaderContext
 }
+
+export interface ReaderContext { unitSystem: UnitSystem, companyUnitSystem: UnitSystem, phone: string, companyName: string, timeZone: string }
 
 export function hashToken(token: string) {
   return createHash('sha256').update(token).digest('hex')
@@ -81,33 +90,47 @@ function tokenFrom(event: H3Event): { token: string, from: 'header' | 'cookie' }
   return cookie ? { token: cookie, from: 'cookie' } : null
 }
 
-/** The signed-in user, or null. Looked up once per request. */
+/**
+ * The signed-in user, or null. Looked up once per request, and kept a few seconds in the session
+ * cache (server/utils/session-cache.ts), which every instance clears when a session ends.
+ */
 export async function getSessionUser(event: H3Event): Promise<SessionUser | null> {
   if (event.context.sessionUser !== undefined) return event.context.sessionUser
   const presented = tokenFrom(event)
   let found: SessionUser | null = null
   if (presented) {
-    const { token } = presented
-    const [row] = await useDb()
-      .select({
-        id: users.id, email: users.email, name: users.name, role: users.role,
-        companyId: users.companyId, customerId: users.customerId, sessionId: sessions.id,
-      })
-      .from(sessions)
-      .innerJoin(users, eq(users.id, sessions.userId))
-      .where(and(
-        eq(sessions.tokenHash, hashToken(token)),
-        isNull(sessions.revokedAt),
-        gt(sessions.expiresAt, new Date()),
-        eq(users.active, true),
-      ))
-      .limit(1)
-    found = row ?? null
+    const tokenHash = hashToken(presented.token)
+    found = cachedSession(tokenHash) ?? await lookUpSession(tokenHash)
     // An expired or revoked session's cookie is cleared rather than sent on every request.
     if (!found && presented.from === 'cookie') clearSessionCookie(event)
   }
   event.context.sessionUser = found
   return found
+}
+
+async function lookUpSession(tokenHash: string): Promise<SessionUser | null> {
+  const mark = lookupMark()
+  const [row] = await useDb()
+    .select({
+      id: users.id, email: users.email, name: users.name, role: users.role,
+      companyId: users.companyId, customerId: users.customerId, sessionId: sessions.id, expiresAt: sessions.expiresAt,
+      ownUnitSystem: users.unitSystem, companyUnitSystem: companies.unitSystem, phone: companies.phone, companyName: companies.name, timeZone: companies.timeZone,
+    })
+    .from(sessions)
+    .innerJoin(users, eq(users.id, sessions.userId))
+    .innerJoin(companies, eq(companies.id, users.companyId))
+    .where(and(
+      eq(sessions.tokenHash, tokenHash),
+      isNull(sessions.revokedAt),
+      gt(sessions.expiresAt, new Date()),
+      eq(users.active, true),
+    ))
+    .limit(1)
+  if (!row) return null
+  const { expiresAt, ownUnitSystem, companyUnitSystem, phone, companyName, timeZone, ...rest } = row
+  const user: SessionUser = { ...rest, reader: { unitSystem: ownUnitSystem ?? companyUnitSystem, companyUnitSystem, phone, companyName, timeZone } }
+  storeSession(tokenHash, user, expiresAt, mark)
+  return user
 }
 
 /**
@@ -126,10 +149,14 @@ export async function requireUser(event: H3Event, opts: { roles?: readonly Role[
   return user
 }
 
-/** Ends every open session of a user (deactivation, password or role change). */
-export async function revokeUserSessions(userId: string, db = useDb()) {
+/**
+ * Ends every open session of a user (deactivation, password or role change), and tells every
+ * instance to forget them; inside `db`'s transaction when one is given.
+ */
+export async function revokeUserSessions(userId: string, db: Database | Tx = useDb()) {
   await db.update(sessions).set({ revokedAt: new Date() })
     .where(and(eq(sessions.userId, userId), isNull(sessions.revokedAt)))
+  await notifySessionsChanged(db, { userId })
 }
 
 declare module 'h3' {

@@ -50,6 +50,8 @@ export const visits = pgTable('visits', {
   index('visits_company_date_idx').on(t.companyId, t.scheduledOn),
   index('visits_technician_date_idx').on(t.technicianId, t.scheduledOn),
   index('visits_customer_date_idx').on(t.customerId, t.scheduledOn),
+  // A feature's chart marks the finished visits at its site (chart-data featureSeries).
+  index('visits_site_date_idx').on(t.siteId, t.scheduledOn),
 ])
 
 /** Private, revocable iCalendar feeds: for a technician (their visits) or a customer (their upcoming visits). */

@@ -1,0 +1,1 @@
+CREATE INDEX "visits_site_date_idx" ON "visits" USING btree ("site_id","scheduled_on");
