@@ -10,8 +10,8 @@ import S3rver from 's3rver'
 import { inject } from 'vitest'
 
 const root = resolve(import.meta.dirname, '../..')
-/** s3rver on this port, the instances on the next ones (RILLBOOK_TEST_INSTANCE_PORT overrides). */
-const BASE_PORT = Number(process.env.RILLBOOK_TEST_INSTANCE_PORT || 3190)
+/** s3rver on this port, the instances on the next ones: 20 above the test server's (RILLBOOK_TEST_INSTANCE_PORT overrides). */
+const BASE_PORT = Number(process.env.RILLBOOK_TEST_INSTANCE_PORT || Number(process.env.RILLBOOK_TEST_PORT || 3199) + 20)
 const S3_DIR = resolve(root, '.data/s3-test')
 export const S3_BUCKET = 'rillbook-test'
 // s3rver's fixed credentials: the driver signs every request with them.
