@@ -6,20 +6,10 @@
 // Run alone: npm run bench -- --only planner   (or: npx tsx bench/planner.ts)
 import { planSeason, planSeasonBaseline, type PlannerInput, type PlannerTechnician, type PlannerVisit, type SeasonPlan } from '../shared/utils/planner/index'
 import { buildVisitSchedule, expandVisitSchedule, type VisitScheduleForm } from '../shared/utils/visit-windows'
+import { seeded } from '../scripts/seed/scale-book'
 
 export const PLANNER_BUDGET = { seconds: 60, daysOverCapacity: 0 }
 
-/** mulberry32: a small seeded PRNG, so the generated company is the same every run. */
-function seeded(seed: number) {
-  let a = seed >>> 0
-  return () => {
-    a = (a + 0x6D2B79F5) >>> 0
-    let t = a
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
 
 interface Template { name: string, form: VisitScheduleForm, minutes: number }
 /** Plans with their visit templates and the share of customers on each. Short weekly checks keep the work within the technicians' time. */
