@@ -112,6 +112,10 @@ export default defineNuxtConfig({
     xssValidator: false,
     corsHandler: false,
   },
+  // JSON answers carry no scripts: no CSP nonce to make for them (pages keep theirs).
+  routeRules: {
+    '/api/**': { security: { nonce: false } },
+  },
   tailwindcss: {
     cssPath: false,
     viewer: false,

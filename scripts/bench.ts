@@ -12,6 +12,7 @@ import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs'
 import { dirname, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { parseArgs } from 'node:util'
+import { availableParallelism } from 'node:os'
 import { gzipSync } from 'node:zlib'
 import autocannon from 'autocannon'
 import pg from 'pg'
@@ -50,23 +51,80 @@ async function hasSeasonBook(pgc: pg.Client) {
   return r.windows > 0 && r.homes > 0
 }
 
-async function startServer(): Promise<ChildProcess> {
+/** Workers of the measured server: RILLBOOK_WORKERS as `npm start` reads it, else one per core (scripts/serve.mjs). */
+const WORKERS = Number(process.env.RILLBOOK_WORKERS || availableParallelism())
+
+/**
+ * The built server the way `npm start` runs it: scripts/serve.mjs with `workers` processes on one
+ * port. With `logSql` each statement the app sends comes out on stderr as a JSON line
+ * (RILLBOOK_LOG_SQL, server/utils/db.ts) and is handed to `onSql`.
+ */
+async function startServer(opts: { port: number, workers: number, logSql?: (line: { sql: string, params: unknown[] }) => void }): Promise<ChildProcess> {
   if (!existsSync(resolve(root, '.output/server/index.mjs'))) {
     say('building…')
     spawnSync(bin('nuxt'), ['build'], { cwd: root, stdio: 'inherit' })
   }
-  const server = spawn(process.execPath, [resolve(root, '.output/server/index.mjs')], {
-    cwd: root, stdio: ['ignore', 'ignore', 'inherit'],
-    env: { ...process.env, DATABASE_URL: DB_URL, NITRO_HOST: '127.0.0.1', NITRO_PORT: String(PORT), RILLBOOK_PG_POOL_MAX: '20', STRIPE_SECRET_KEY: '', SMTP_HOST: '127.0.0.1', SMTP_PORT: '2599' },
+  const server = spawn(process.execPath, [resolve(root, 'scripts/serve.mjs')], {
+    cwd: root, stdio: ['ignore', 'ignore', opts.logSql ? 'pipe' : 'inherit'],
+    env: { ...process.env, DATABASE_URL: DB_URL, NITRO_HOST: '127.0.0.1', NITRO_PORT: String(opts.port), RILLBOOK_WORKERS: String(opts.workers), RILLBOOK_PG_POOL_MAX: String(Math.max(5, Math.ceil(20 / opts.workers))), STRIPE_SECRET_KEY: '', SMTP_HOST: '127.0.0.1', SMTP_PORT: '2599', ...(opts.logSql && { RILLBOOK_LOG_SQL: '1' }) },
   })
+  if (opts.logSql) {
+    let rest = ''
+    server.stderr!.setEncoding('utf8').on('data', (chunk: string) => {
+      const lines = (rest + chunk).split('\n')
+      rest = lines.pop() ?? ''
+      for (const l of lines) if (l.startsWith('[sql] ')) opts.logSql!(JSON.parse(l.slice(6)))
+    })
+  }
   for (let i = 0; i < 150; i++) {
     try {
-      if ((await fetch(`${BASE}/api/health`)).ok) return server
+      if ((await fetch(`http://127.0.0.1:${opts.port}/api/health`)).ok) return server
     }
     catch {}
     await new Promise(r => setTimeout(r, 200))
   }
   throw new Error('the server did not start')
+}
+
+async function stopServer(server: ChildProcess) {
+  const gone = new Promise(r => server.once('exit', r))
+  server.kill('SIGTERM')
+  await gone
+}
+
+type Statement = { sql: string, params: unknown[] }
+interface Case { name: string, path: string, method?: string, body?: unknown, token?: string, read: boolean }
+
+/**
+ * "The same work straight through pg": the exact statements the app sends for one warm request of
+ * each case (its session already known), captured from a one-worker server that logs its SQL.
+ * Each case is asked three times after a warm-up and the smallest set is kept, so a scheduled
+ * task's statements that happen to fall inside a request are left out.
+ */
+async function captureStatements(cases: Case[]): Promise<Map<string, Statement[]>> {
+  const port = PORT + 1
+  let sink: Statement[] | null = null
+  const server = await startServer({ port, workers: 1, logSql: (line) => { sink?.push(line) } })
+  const out = new Map<string, Statement[]>()
+  try {
+    for (const k of cases) {
+      const ask = () => fetch(`http://127.0.0.1:${port}${k.path}`, { method: k.method ?? 'GET', headers: { 'content-type': 'application/json', ...(k.token ? { authorization: `Bearer ${k.token}` } : {}) }, body: k.body === undefined ? undefined : JSON.stringify(k.body) }).then(r => r.arrayBuffer())
+      await ask()
+      let best: Statement[] | null = null
+      for (let i = 0; i < 3; i++) {
+        sink = []
+        await ask()
+        await new Promise(r => setTimeout(r, 50))
+        if (!best || sink.length < best.length) best = sink
+        sink = null
+      }
+      out.set(k.name, best!)
+    }
+  }
+  finally {
+    await stopServer(server)
+  }
+  return out
 }
 
 interface Load { rps: number, p50: number, p95: number, p99: number, errors: number, non2xx: number }
@@ -83,15 +141,32 @@ function percentile95(r: autocannon.Result) {
   return r.latency.p90 + (r.latency.p97_5 - r.latency.p90) * (5 / 7.5)
 }
 
-/** The same work straight through pg: a pool of `connections`, each running `sql` in a loop. */
-async function baseline(sqls: Array<{ sql: string, params: unknown[] }>, connections: number): Promise<Load> {
+/**
+ * The same work straight through pg: `connections` loops sharing a pool, each running the
+ * statements in order (on one connection of its own when they hold a transaction). Null when
+ * there is nothing to run.
+ */
+async function baseline(sqls: Statement[], connections: number): Promise<Load | null> {
+  if (!sqls.length) return null
   const pool = new pg.Pool({ connectionString: DB_URL, max: Math.min(connections, 20) })
+  const inTransaction = sqls.some(q => /^\s*(begin|start transaction)/i.test(q.sql))
   const times: number[] = []
   const end = Date.now() + DURATION * 1000
   await Promise.all(Array.from({ length: connections }, async () => {
     while (Date.now() < end) {
       const t = performance.now()
-      for (const q of sqls) await pool.query(q.sql, q.params)
+      if (inTransaction) {
+        const client = await pool.connect()
+        try {
+          for (const q of sqls) await client.query(q.sql, q.params)
+        }
+        finally {
+          client.release()
+        }
+      }
+      else {
+        for (const q of sqls) await pool.query(q.sql, q.params)
+      }
       times.push(performance.now() - t)
     }
   }))
@@ -151,52 +226,50 @@ async function main() {
     return
   }
 
-  const server = await startServer()
+  // The alert scan is up to date when the measured server starts (as in a company that has been
+  // running): its scheduled run must not scan the whole generated history during a measurement.
+  await c.query(`insert into task_watermarks (name, last_seq) values ('alerts:scan', (select coalesce(max(seq), 0) from readings)) on conflict (name) do update set last_seq = excluded.last_seq`)
+  const server = await startServer({ port: PORT, workers: WORKERS })
+  results.workers = WORKERS
   try {
     const login = async (email: string) => (await (await fetch(`${BASE}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password: 'demo-pond-2026' }) })).json() as { token: string }).token
     const owner = await login('owner@larchfield-scale.example')
-    const { rows: [busy] } = await c.query(`select u.email, u.id from visits v join users u on u.id = v.technician_id where v.scheduled_on = (now() at time zone 'America/Chicago')::date group by 1, 2 order by count(*) desc limit 1`)
-    const techEmail = busy?.email ?? 'tech1@larchfield-scale.example'
+    // Today on a full day, whatever the date of the run: a technician-day of the planned current
+    // season with as many stops as nine in ten of its days have at most (the 90th percentile).
+    const { rows: [busy] } = await c.query(`with d as (select v.technician_id as id, v.scheduled_on as day, count(*)::int as stops from visits v
+        where v.company_id = $1 and v.status <> 'cancelled' and v.technician_id is not null and v.generation_key is not null group by 1, 2),
+      p as (select percentile_disc(0.9) within group (order by stops) as stops from d)
+      select u.email, u.id, d.day::text as day, d.stops from d join p on d.stops = p.stops join users u on u.id = d.id order by d.day desc limit 1`, [companyId])
+    const techEmail = busy.email as string
+    results.todayDay = { date: busy.day, stops: busy.stops }
     const tech = await login(techEmail)
     const { rows: [feature] } = await c.query(`select feature_id as id from readings group by 1 order by count(*) desc limit 1`)
     // The board's week: Monday to Sunday of this week in the company's time.
     const { rows: [week] } = await c.query(`select (d - ((extract(isodow from d)::int - 1) * interval '1 day'))::date::text as from, (d - ((extract(isodow from d)::int - 1) * interval '1 day') + interval '6 days')::date::text as to
       from (select (now() at time zone 'America/Chicago')::date as d) x`)
-    const session = { sql: `select u.id from sessions s join users u on u.id = s.user_id where s.token_hash = $1 and s.expires_at > now()`, params: ['x'] }
-    const cases = [
+    // Each read's baseline is the statements the app itself sends for it (captureStatements); sign-in
+    // writes a session, so its baseline is the user lookup alone.
+    const cases: Array<Case & { base?: Statement[] }> = [
       { name: 'sign-in', method: 'POST', path: '/api/auth/login', body: { email: 'owner@larchfield-scale.example', password: 'demo-pond-2026' }, read: false,
         base: [{ sql: 'select id, password_hash from users where email = $1', params: ['owner@larchfield-scale.example'] }] },
-      { name: "technician's Today", path: '/api/today', token: tech, read: true,
-        base: [session, { sql: `select v.* from visits v join sites s on s.id = v.site_id where v.technician_id = $1 and v.scheduled_on = (now() at time zone 'America/Chicago')::date order by v.starts_at`, params: [busy?.id ?? companyId] }] },
-      { name: "a feature's year of readings", path: `/api/features/${feature.id}/series?range=year`, token: owner, read: true,
-        base: [session, { sql: `select * from readings where feature_id = $1 and taken_at > now() - interval '1 year' order by taken_at`, params: [feature.id] }] },
-      { name: 'invoices table, first page', path: '/api/invoices?page=1&pageSize=25&sort=issueDate&dir=desc', token: owner, read: true,
-        base: [session, { sql: `select i.*, c.name from invoices i join customers c on c.id = i.customer_id where i.company_id = $1 order by i.issue_date desc, i.number_year desc, i.number_seq desc, i.id desc limit 25`, params: [companyId] }, { sql: 'select currency, sum(invoices), sum(total_minor) from invoice_day_totals where company_id = $1 group by currency', params: [companyId] }] },
-      { name: 'revenue view', path: '/api/revenue', token: owner, read: true,
-        base: [session, { sql: `select ct.*, p.billing_cadence, p.price_minor, v.visits from contracts ct join plans p on p.id = ct.plan_id left join contract_planned_visits v on v.contract_id = ct.id where ct.company_id = $1 and ct.status <> 'draft'`, params: [companyId] }, { sql: `select * from invoice_day_totals where company_id = $1`, params: [companyId] }] },
-      { name: 'customers list, first page', path: '/api/customers?page=1&pageSize=25&sort=name&dir=asc&status=current', token: owner, read: true,
-        base: [session, { sql: `select c.id, c.name, c.kind, c.active, c.tags, c.billing_city, c.archived_at, c.created_at,
-          (select count(*)::int from water_features wf where wf.customer_id = c.id and wf.archived_at is null) as features,
-          (select cc.email from customer_contacts cc where cc.customer_id = c.id order by cc.position limit 1) as email,
-          (select cc.phone from customer_contacts cc where cc.customer_id = c.id order by cc.position limit 1) as phone
-          from customers c where c.company_id = $1 and c.archived_at is null order by c.name, c.id limit 25`, params: [companyId] },
-        { sql: 'select count(*) from customers where company_id = $1 and archived_at is null', params: [companyId] }] },
-      { name: 'schedule week', path: `/api/schedule?from=${week.from}&to=${week.to}`, token: owner, read: true,
-        base: [session, { sql: `select v.id, v.scheduled_on, v.visit_type, v.status, v.technician_id, v.duration_minutes, v.move_reason, v.moved_manually, c.name, s.line1, s.city, s.latitude, s.longitude, u.name as technician_name
-          from visits v join customers c on c.id = v.customer_id join sites s on s.id = v.site_id left join users u on u.id = v.technician_id
-          where v.company_id = $1 and v.scheduled_on between $2 and $3 and v.status <> 'cancelled' order by v.scheduled_on, c.name limit 2000`, params: [companyId, week.from, week.to] },
-        { sql: `select u.id, u.name, sp.capacity_minutes, sp.home_latitude, sp.home_longitude, sp.working_days from users u left join staff_profiles sp on sp.user_id = u.id
-          where u.company_id = $1 and u.role = 'technician' and u.active order by u.name limit 100`, params: [companyId] }] },
-      { name: 'POST /api/water/evaluate', method: 'POST', path: '/api/water/evaluate', token: owner, read: true, body: { volumeL: 12000, kind: 'koi_pond', reading: { temperatureC: 24, pH: 8.1, totalAmmoniaMgL: 0.5, khMgL: 90 } },
-        base: [session] },
+      { name: "technician's Today", path: `/api/today?date=${busy.day}`, token: tech, read: true },
+      { name: "a feature's year of readings", path: `/api/features/${feature.id}/series?range=year`, token: owner, read: true },
+      { name: 'invoices table, first page', path: '/api/invoices?page=1&pageSize=25&sort=issueDate&dir=desc', token: owner, read: true },
+      { name: 'revenue view', path: '/api/revenue', token: owner, read: true },
+      { name: 'customers list, first page', path: '/api/customers?page=1&pageSize=25&sort=name&dir=asc&status=current', token: owner, read: true },
+      { name: 'schedule week', path: `/api/schedule?from=${week.from}&to=${week.to}`, token: owner, read: true },
+      // A reading evaluated against its feature (volume, ranges, site altitude, fish), as the visit form does.
+      { name: 'POST /api/water/evaluate', method: 'POST', path: '/api/water/evaluate', token: owner, read: true, body: { featureId: feature.id, reading: { temperatureC: 24, pH: 8.1, totalAmmoniaMgL: 0.5, khMgL: 90 } } },
     ]
     const rows: Array<Record<string, unknown>> = []
+    const statements = want('endpoints') ? await captureStatements(cases.filter(k => !k.base)) : new Map<string, Statement[]>()
     for (const k of want('endpoints') ? cases : []) {
+      const base = k.base ?? statements.get(k.name)!
       for (const connections of [1, 50]) {
         say(`${k.name} at ${connections} connection(s)…`)
         const app = await load({ path: k.path, method: k.method, body: k.body, token: k.token, connections })
-        const raw = await baseline(k.base, connections)
-        rows.push({ name: k.name, read: k.read, connections, app, pg: raw, ratio: raw.rps > 0 ? app.rps / raw.rps : null })
+        const raw = await baseline(base, connections)
+        rows.push({ name: k.name, read: k.read, connections, app, pg: raw, statements: base.length, ratio: raw && raw.rps > 0 ? app.rps / raw.rps : null })
       }
     }
     if (want('endpoints')) results.endpoints = rows
@@ -295,16 +368,25 @@ async function main() {
     results.pagination = paged
     }
 
-    // EXPLAIN for the heaviest reads.
+    // The statements each read sends, and EXPLAIN ANALYZE of the slowest of them.
     const explain: Record<string, string> = {}
-    for (const k of cases.filter(x => x.read)) {
-      const q = k.base.at(-1)!
-      explain[k.name] = (await c.query(`explain (analyze, buffers off, timing off, summary on) ${q.sql}`, q.params)).rows.map(r => r['QUERY PLAN']).join('\n')
+    for (const k of cases.filter(x => x.read && statements.has(x.name))) {
+      const timed = []
+      for (const q of statements.get(k.name)!) {
+        const t = performance.now()
+        await c.query(q.sql, q.params)
+        timed.push({ q, ms: performance.now() - t })
+      }
+      const slowest = timed.sort((a, b) => b.ms - a.ms)[0]
+      explain[k.name] = slowest
+        ? `${timed.length} statement(s); the slowest:\n\n${(await c.query(`explain (analyze, buffers off, timing off, summary on) ${slowest.q.sql}`, slowest.q.params)).rows.map(r => r['QUERY PLAN']).join('\n')}`
+        : 'no statements: the app answers from memory once the session is known'
     }
     results.explain = explain
+    results.statements = Object.fromEntries([...statements].map(([name, list]) => [name, list.map(q => q.sql)]))
   }
   finally {
-    server.kill('SIGTERM')
+    await stopServer(server)
     await c.end()
   }
   saveResults(results)
@@ -337,11 +419,13 @@ function summaryMd(r: Record<string, any>) {
   const ok = (b: boolean) => (b ? 'met' : '**missed**')
   const lines = [`# Benchmark summary`, '', `Run ${r.at} on this machine, ${r.durationSeconds} s per measurement. Data: ${Object.entries(r.counts ?? {}).map(([k, v]) => `${v} ${k}`).join(', ')}.`, '',
     ...(r.seedSeconds ? [`Generating it (npm run db:seed:scale) took ${r.seedSeconds.toFixed(0)} s (budget 180 s: ${ok(r.seedSeconds < 180)}).`, ''] : []),
-    '| endpoint | connections | app req/s | app p95 ms | pg req/s | pg p95 ms | app ÷ pg | p95 budget (reads, 50 conn.) | throughput budget (≥ 40 %) |', '| --- | --- | --- | --- | --- | --- | --- | --- | --- |']
+    ...(r.endpoints ? [`The app runs as \`npm start\` runs it: scripts/serve.mjs with ${r.workers ?? 1} worker(s) on one port. The "pg" columns replay, straight through pg from a pool in the bench process, the exact statements the app sent for one warm request of the same endpoint (captured with RILLBOOK_LOG_SQL; the statements are listed at the end). Today is measured on a full technician-day of the planned season, whatever the date of the run (${r.todayDay?.date}, ${r.todayDay?.stops} stops: nine in ten of the season's technician-days have no more).`, ''] : []),
+    '| endpoint | connections | app req/s | app p95 ms | errors | pg req/s | pg p95 ms | app ÷ pg | p95 budget (reads, 50 conn.) | throughput budget (≥ 40 %) |', '| --- | --- | --- | --- | --- | --- | --- | --- | --- | --- |']
   for (const e of r.endpoints ?? []) {
-    const p95Budget = e.read && e.connections === 50 ? ok(e.app.rps > 0 && e.app.p95 < r.budgets.p95Ms) : '—'
-    const ratioBudget = e.read ? ok((e.ratio ?? 0) >= r.budgets.throughputRatio) : '—'
-    lines.push(`| ${e.name} | ${e.connections} | ${e.app.rps.toFixed(0)} | ${e.app.p95.toFixed(1)} | ${e.pg.rps.toFixed(0)} | ${e.pg.p95.toFixed(1)} | ${e.ratio == null ? '—' : `${(e.ratio * 100).toFixed(0)} %`} | ${p95Budget} | ${ratioBudget} |`)
+    const failed = e.app.errors + e.app.non2xx
+    const p95Budget = e.read && e.connections === 50 ? ok(e.app.rps > 0 && e.app.p95 <= r.budgets.p95Ms && failed === 0) : '—'
+    const ratioBudget = e.read && e.connections === 50 ? ok((e.ratio ?? 0) >= r.budgets.throughputRatio) : '—'
+    lines.push(`| ${e.name} | ${e.connections} | ${e.app.rps.toFixed(0)} | ${e.app.p95.toFixed(1)} | ${failed} | ${e.pg ? e.pg.rps.toFixed(0) : '—'} | ${e.pg ? e.pg.p95.toFixed(1) : '—'} | ${e.ratio == null ? '—' : `${(e.ratio * 100).toFixed(0)} %`} | ${p95Budget} | ${ratioBudget} |`)
   }
   const a = r.alertScan
   const scanS = (x: { seconds: number, scanSeconds?: number | null }) => x.scanSeconds ?? x.seconds
@@ -350,7 +434,7 @@ function summaryMd(r: Record<string, any>) {
   if (n) lines.push('', `Renewals: ${n.renewed} of ${n.eligible} contracts renewed (and ${n.invoicesRaised} invoices raised) in ${n.seconds.toFixed(1)} s as of ${n.asOf}; at that rate 10,000 take ${n.per10kSeconds?.toFixed(0) ?? '—'} s (budget 60 s: ${ok((n.per10kSeconds ?? Infinity) < r.budgets.renew10kS)}). Duplicates: ${n.duplicates.contracts} contracts, ${n.duplicates.invoices} invoices. ${n.note}`)
   if (r.pageJsKbGzip) {
     lines.push('', '| page | JavaScript on first load (kB gzip) |', '| --- | --- |')
-    for (const [p, kb] of Object.entries(r.pageJsKbGzip)) lines.push(`| ${p} | ${kb}${p.includes('/visits/') ? ` (budget ${r.budgets.visitPageJsKb} kB: ${ok((kb as number) <= r.budgets.visitPageJsKb)})` : ''} |`)
+    for (const [p, kb] of Object.entries(r.pageJsKbGzip)) lines.push(`| ${p} | ${kb} (budget ${r.budgets.visitPageJsKb} kB: ${ok((kb as number) <= r.budgets.visitPageJsKb)}) |`)
   }
   const pl = r.planner
   if (pl?.data?.source) {
@@ -366,6 +450,10 @@ function summaryMd(r: Record<string, any>) {
   if (r.explain) {
     lines.push('', '## EXPLAIN ANALYZE of the baseline queries', '')
     for (const [k, v] of Object.entries(r.explain)) lines.push(`### ${k}`, '', '```', v as string, '```', '')
+  }
+  if (r.statements) {
+    lines.push('', '## The statements each read sends (one warm request)', '')
+    for (const [k, list] of Object.entries(r.statements as Record<string, string[]>)) lines.push(`### ${k}`, '', ...(list.length ? list.map(q => `- \`${q.replace(/\s+/g, ' ').slice(0, 400)}\``) : ['- none']), '')
   }
   return `${lines.join('\n')}\n`
 }

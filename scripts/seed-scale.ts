@@ -19,6 +19,8 @@ import { hashPassword } from '../server/utils/password'
 import { windowVisitDates } from '../server/services/visit-generation'
 import { buildVisitSchedule } from '../shared/utils/visit-windows'
 import { SCALE_PLANS, SCALE_TECHNICIANS, scalePlaces } from './seed/scale-book'
+import { loadScaleSeason } from '../bench/season'
+import { planSeason } from '../shared/utils/planner/index'
 
 const { values } = parseArgs({ options: { customers: { type: 'string', default: '5000' }, database: { type: 'string', default: 'rillbook_scale' }, url: { type: 'string' }, keep: { type: 'boolean', default: false } } })
 const N = Number(values.customers)
@@ -110,10 +112,12 @@ async function main() {
       select ct.company_id, ct.id, ct.customer_id, s.id, 'routine', (case when d.day < $2::date then 'done' else 'scheduled' end)::visit_status, d.day,
              (d.day + time '14:00') at time zone 'UTC', 60, t.id, case when d.day < $2::date then (d.day + time '15:00') at time zone 'UTC' end
       from contracts ct join sites s on s.customer_id = ct.customer_id
-      cross join lateral (select (ct.term_start + (14 + 21 * k) * interval '1 day')::date as day from generate_series(0, 12) k) d
+      cross join lateral (select (date_trunc('week', ct.term_start + (14 + 21 * k) * interval '1 day')::date + (w / 5) * 7 + w % 5) as day
+        from generate_series(0, 12) k, (select abs(hashtext(ct.customer_id::text || ':day')) % 15 as w) h) d
       join lateral (select id from users where company_id = ct.company_id and role = 'technician' order by email offset (abs(hashtext(ct.customer_id::text)) % $3) limit 1) t on true
       where ct.company_id = $1 and ct.term_start < $4::date`, [companyId, todayDate, SCALE_TECHNICIANS, seasons[2]])
     await currentSeasonVisits(c, companyId, seasons[2]!, todayDate, techRows.map(t => t.id as string), say)
+    await planCurrentSeason(c, companyId, todayDate, say)
     await step('water tests', `insert into readings (id, company_id, feature_id, source, taken_at, temperature_c, ph, total_ammonia_mg_l, nitrite_mg_l, kh_mg_l, overall, evaluation)
       select gen_random_uuid(), f.company_id, f.id, 'technician', ($2::date - (k * 7) * interval '1 day') + time '15:00',
              round((14 + 10 * sin(k * 2 * pi() / 52) + random() * 2)::numeric, 1), round((7.0 + random() * 1.4)::numeric, 2), round((random() * 0.4)::numeric, 2),
@@ -193,6 +197,28 @@ async function currentSeasonVisits(c: pg.Client, companyId: string, seasonStart:
   }
   await flush()
   log(`visits (current season, from the plans' windows): ${n} rows`)
+}
+
+/**
+ * The current season as a company using the product would have it: planned by the season planner
+ * (bench/season.ts reads it as the planner's input) within each technician's capacity, in driving
+ * order, with the planner's reason on each visit it could not place. Past visits are done.
+ */
+async function planCurrentSeason(c: pg.Client, companyId: string, today: string, log: (m: string) => void) {
+  const { input } = await loadScaleSeason(c, companyId)
+  const plan = planSeason(input)
+  const { rows: [company] } = await c.query(`select time_zone, day_start_time::text as start from companies where id = $1`, [companyId])
+  const ids = [...plan.placed.map(p => p.visitId), ...plan.unplaced.map(u => u.visitId)]
+  const days = [...plan.placed.map(p => p.day), ...plan.unplaced.map(() => null)]
+  const techs = [...plan.placed.map(p => p.technicianId), ...plan.unplaced.map(() => null)]
+  const reasons = [...plan.placed.map(() => null), ...plan.unplaced.map(u => u.reason)]
+  await c.query(`update visits v set scheduled_on = coalesce(x.day, v.scheduled_on),
+      starts_at = (coalesce(x.day, v.scheduled_on) + $6::time) at time zone $7, technician_id = x.tech, unplaced_reason = x.reason,
+      status = (case when x.day is not null and x.day < $8::date then 'done' else 'scheduled' end)::visit_status,
+      finished_at = case when x.day is not null and x.day < $8::date then (x.day + $6::time + interval '1 hour') at time zone $7 end
+    from unnest($2::uuid[], $3::date[], $4::uuid[], $5::text[]) x(id, day, tech, reason) where v.id = x.id and v.company_id = $1`,
+  [companyId, ids, days, techs, reasons, company.start, company.time_zone, today])
+  log(`current season planned: ${plan.stats.placed} placed, ${plan.stats.unplaced} unplaced, ${plan.stats.daysOverCapacity} technician-days over capacity`)
 }
 
 /** A small string hash (FNV-1a), for spreading customers over technicians the same way every run. */

@@ -26,6 +26,12 @@ function rememberedOrder(home: RouteCoordinate, stops: Array<{ id: string, lat: 
 }
 
 /**
+ * More than any one day can hold (a day of at most 24 h of visits of at least 10 minutes each is
+ * 144 visits), so no stop of a day is ever left off; the bound only keeps a bad row count out.
+ */
+const MAX_STOPS = 150
+
+/**
  * A technician's day: their visits in driving order from their home base (or the company's
  * yard), with the leg before each stop, and the expected end time. A hand-made order (route
  * positions) wins over the computed one.
@@ -50,7 +56,7 @@ export async function technicianDay(actor: SessionUser, q: { date?: string, tech
       accessNotes: sites.accessNotes, gateCode: sites.gateCode, hazards: sites.hazards, hazardNotes: sites.hazardNotes,
     }).from(visits).innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
       .where(and(eq(visits.companyId, actor.companyId), eq(visits.technicianId, technicianId), eq(visits.scheduledOn, date), ne(visits.status, 'cancelled')))
-      .orderBy(asc(visits.startsAt), asc(visits.id)).limit(60),
+      .orderBy(asc(visits.startsAt), asc(visits.id)).limit(MAX_STOPS),
   ])
   if (!tech) throw httpError(404, 'No such technician')
 

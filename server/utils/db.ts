@@ -28,12 +28,22 @@ export function useDb(): Database {
     // An idle connection dropped by a restarting server must not take the process down; the pool
     // opens a new one on the next query.
     pool.on('error', (err) => { console.error(`[db] idle connection lost: ${err.message}`) })
-    instance = drizzle(pool, { schema })
+    instance = drizzle(pool, { schema, logger: process.env.RILLBOOK_LOG_SQL === '1' ? sqlLineLogger : false })
   }
   return instance
 }
 
 export { schema }
+
+/**
+ * RILLBOOK_LOG_SQL=1 (diagnostics; the bench uses it to replay an endpoint's exact statements
+ * straight through pg): every statement and its parameters as one JSON line on stderr.
+ */
+const sqlLineLogger = {
+  logQuery(query: string, params: unknown[]) {
+    process.stderr.write(`[sql] ${JSON.stringify({ sql: query, params })}\n`)
+  },
+}
 
 /** Closes the pool (scripts and tests; the server keeps it for its lifetime). */
 export async function closeDb() {

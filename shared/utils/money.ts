@@ -2,13 +2,25 @@
 
 /** Digits after the decimal point for a currency (2 for USD, 0 for JPY, 3 for BHD). */
 export function currencyMinorDigits(currency: string): number {
-  return new Intl.NumberFormat('en', { style: 'currency', currency }).resolvedOptions().maximumFractionDigits ?? 2
+  return currencyFormat('en', currency).resolvedOptions().maximumFractionDigits ?? 2
+}
+
+/** Making an Intl.NumberFormat costs far more than using one: one per locale and currency, kept. */
+const moneyFormats = new Map<string, Intl.NumberFormat>()
+function currencyFormat(locale: string, currency: string): Intl.NumberFormat {
+  const key = `${locale}|${currency}`
+  let f = moneyFormats.get(key)
+  if (!f) {
+    const digits = new Intl.NumberFormat('en', { style: 'currency', currency }).resolvedOptions().maximumFractionDigits ?? 2
+    moneyFormats.set(key, (f = new Intl.NumberFormat(locale, { style: 'currency', currency, minimumFractionDigits: digits, maximumFractionDigits: digits })))
+  }
+  return f
 }
 
 /** 145000 USD → "$1,450.00". */
 export function formatMoney(minor: number, currency: string, locale = 'en-US'): string {
   const digits = currencyMinorDigits(currency)
-  return new Intl.NumberFormat(locale, { style: 'currency', currency, minimumFractionDigits: digits, maximumFractionDigits: digits }).format(minor / 10 ** digits)
+  return currencyFormat(locale, currency).format(minor / 10 ** digits)
 }
 
 /** "1,450.00" (or "1450", "1450.5") → 145000 minor units; NaN when it is not an amount. */

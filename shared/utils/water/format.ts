@@ -135,8 +135,14 @@ export function digitsFor(kind: QuantityKind, system: UnitSystem): number {
 /** A plain number with thousands separators and at most `digits` decimals (no trailing zeros). */
 export function formatNumber(v: number, digits = 2, minDigits = 0): string {
   const d = Math.max(0, Math.min(20, digits))
-  return new Intl.NumberFormat('en-US', { maximumFractionDigits: d, minimumFractionDigits: Math.min(minDigits, d) }).format(v === 0 ? 0 : v)
+  const min = Math.min(minDigits, d)
+  // Making an Intl.NumberFormat costs far more than using one: one per digits pair, kept.
+  const key = d * 32 + min
+  let f = numberFormats.get(key)
+  if (!f) numberFormats.set(key, (f = new Intl.NumberFormat('en-US', { maximumFractionDigits: d, minimumFractionDigits: min })))
+  return f.format(v === 0 ? 0 : v)
 }
+const numberFormats = new Map<number, Intl.NumberFormat>()
 
 const withUnit = (n: string, unit: string) => (!unit ? n : unit === '%' ? `${n} %` : `${n} ${unit}`)
 
