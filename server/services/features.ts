@@ -7,7 +7,7 @@ import {
 } from '../../shared/utils/water-chemistry'
 import { contractFeatures, customers, doses, photos, rangeProfiles, readings, sites, waterFeatures } from '../db/schema'
 import { ownCustomerId, type SessionUser } from '../utils/auth'
-import { useDb } from '../utils/db'
+import { preparedQuery, useDb } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { containsPattern } from '../utils/like'
 import { recordAudit } from './audit'
@@ -63,26 +63,40 @@ export async function listFeatures(actor: SessionUser, q: FeatureListQuery) {
 }
 
 /** The range table that applies to a feature: its chosen or its kind's profile, plus its overrides. */
+// A feature and its ranges are read for every water check: prepared statements (server/utils/db.ts).
+const profileById = preparedQuery(db => db.select({ id: rangeProfiles.id, name: rangeProfiles.name, key: rangeProfiles.key, ranges: rangeProfiles.ranges })
+  .from(rangeProfiles).where(and(eq(rangeProfiles.companyId, sql.placeholder('companyId')), eq(rangeProfiles.id, sql.placeholder('profileId')))).limit(1).prepare('range_profile_by_id'))
+const profileByKey = preparedQuery(db => db.select({ id: rangeProfiles.id, name: rangeProfiles.name, key: rangeProfiles.key, ranges: rangeProfiles.ranges })
+  .from(rangeProfiles).where(and(eq(rangeProfiles.companyId, sql.placeholder('companyId')), eq(rangeProfiles.key, sql.placeholder('key')))).limit(1).prepare('range_profile_by_key'))
+
 export async function rangesFor(companyId: string, feature: { kind: FeatureKind, rangeProfileId: string | null, rangeOverrides: RangeTable }) {
   const key = profileKeyForKind(feature.kind)
-  const [profile] = await useDb().select({ id: rangeProfiles.id, name: rangeProfiles.name, key: rangeProfiles.key, ranges: rangeProfiles.ranges })
-    .from(rangeProfiles)
-    .where(and(eq(rangeProfiles.companyId, companyId), feature.rangeProfileId ? eq(rangeProfiles.id, feature.rangeProfileId) : eq(rangeProfiles.key, key)))
-    .limit(1)
+  const [profile] = feature.rangeProfileId
+    ? await profileById().execute({ companyId, profileId: feature.rangeProfileId })
+    : await profileByKey().execute({ companyId, key })
   const base = profile ?? { id: null, ...DEFAULT_PROFILES[key] }
   return { profile: { id: base.id, key: base.key, name: base.name }, ranges: mergeRanges(base.ranges, feature.rangeOverrides) }
 }
 
+/** One feature with its site and customer's name: staff see the company's, a customer their own unarchived ones. */
+const featureColumns = {
+  feature: waterFeatures,
+  customerName: customers.name,
+  site: { id: sites.id, name: sites.name, line1: sites.line1, city: sites.city, altitudeM: sites.altitudeM, latitude: sites.latitude, longitude: sites.longitude },
+}
+const staffFeature = preparedQuery(db => db.select(featureColumns).from(waterFeatures)
+  .innerJoin(sites, eq(sites.id, waterFeatures.siteId)).innerJoin(customers, eq(customers.id, waterFeatures.customerId))
+  .where(and(eq(waterFeatures.id, sql.placeholder('id')), eq(waterFeatures.companyId, sql.placeholder('companyId')))).limit(1).prepare('feature_for_staff'))
+const customerFeature = preparedQuery(db => db.select(featureColumns).from(waterFeatures)
+  .innerJoin(sites, eq(sites.id, waterFeatures.siteId)).innerJoin(customers, eq(customers.id, waterFeatures.customerId))
+  .where(and(eq(waterFeatures.id, sql.placeholder('id')), eq(waterFeatures.companyId, sql.placeholder('companyId')), eq(waterFeatures.customerId, sql.placeholder('customerId')), isNull(waterFeatures.archivedAt)))
+  .limit(1).prepare('feature_for_customer'))
+
 export async function getFeature(actor: SessionUser, id: string) {
-  const db = useDb()
-  const [row] = await db.select({
-    feature: waterFeatures,
-    customerName: customers.name,
-    site: { id: sites.id, name: sites.name, line1: sites.line1, city: sites.city, altitudeM: sites.altitudeM, latitude: sites.latitude, longitude: sites.longitude },
-  }).from(waterFeatures)
-    .innerJoin(sites, eq(sites.id, waterFeatures.siteId))
-    .innerJoin(customers, eq(customers.id, waterFeatures.customerId))
-    .where(and(eq(waterFeatures.id, id), ...scope(actor))).limit(1)
+  const own = ownCustomerId(actor)
+  const [row] = own
+    ? await customerFeature().execute({ id, companyId: actor.companyId, customerId: own })
+    : await staffFeature().execute({ id, companyId: actor.companyId })
   if (!row) throw httpError(404, 'No such water feature')
   const { companyId: _c, ...feature } = row.feature
   const volumeL = feature.measuredVolumeL ?? feature.computedVolumeL

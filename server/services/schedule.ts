@@ -6,7 +6,7 @@ import { addDays, formatLocalDate, localToday } from '../../shared/utils/company
 import { localTimeToInstant } from '../../shared/utils/recurrence'
 import { companies, contractFeatures, customers, sites, staffProfiles, users, visits, waterFeatures } from '../db/schema'
 import { ownCustomerId, type SessionUser } from '../utils/auth'
-import { useDb } from '../utils/db'
+import { preparedQuery, useDb } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { recordAudit } from './audit'
 import { releasedWords, takeTechnicianOff } from './technician-days'
@@ -156,13 +156,15 @@ export async function updateVisit(actor: SessionUser, id: string, input: VisitUp
   return getVisit(actor, id)
 }
 
+const contractFeatureNames = preparedQuery(db => db.select({ contractId: contractFeatures.contractId, siteId: waterFeatures.siteId, name: waterFeatures.name })
+  .from(contractFeatures).innerJoin(waterFeatures, eq(waterFeatures.id, contractFeatures.featureId))
+  .where(sql`${contractFeatures.contractId} = any(${sql.placeholder('contractIds')}::uuid[])`).prepare('contract_feature_names'))
+
 /** Names of the water features a visit covers (its contract's features at its site). */
 export async function featuresForVisits(visitRows: Array<{ id: string, contractId: string | null, siteId: string }>) {
   const contractIds = [...new Set(visitRows.flatMap(v => (v.contractId ? [v.contractId] : [])))]
   if (!contractIds.length) return new Map<string, string[]>()
-  const rows = await useDb().select({ contractId: contractFeatures.contractId, siteId: waterFeatures.siteId, name: waterFeatures.name })
-    .from(contractFeatures).innerJoin(waterFeatures, eq(waterFeatures.id, contractFeatures.featureId))
-    .where(inArray(contractFeatures.contractId, contractIds))
+  const rows = await contractFeatureNames().execute({ contractIds })
   return new Map(visitRows.map(v => [v.id, rows.filter(r => r.contractId === v.contractId && r.siteId === v.siteId).map(r => r.name)]))
 }
 

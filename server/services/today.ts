@@ -1,9 +1,9 @@
-import { and, asc, eq, inArray, ne } from 'drizzle-orm'
+import { and, asc, eq, inArray, ne, sql } from 'drizzle-orm'
 import { localToday } from '../../shared/utils/company-time'
 import { orderStops, routeLegs, type RouteCoordinate } from '../../shared/utils/route-order'
 import { companies, customers, sites, staffProfiles, users, visits } from '../db/schema'
 import type { SessionUser } from '../utils/auth'
-import { useDb } from '../utils/db'
+import { preparedQuery, useDb } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { recordAudit } from './audit'
 import { readerContext } from './company'
@@ -31,32 +31,37 @@ function rememberedOrder(home: RouteCoordinate, stops: Array<{ id: string, lat: 
  */
 const MAX_STOPS = 150
 
+// Today is opened again and again all day: its reads are prepared statements (server/utils/db.ts).
+const companyBase = preparedQuery(db => db.select({ baseLatitude: companies.baseLatitude, baseLongitude: companies.baseLongitude })
+  .from(companies).where(eq(companies.id, sql.placeholder('companyId'))).limit(1).prepare('today_company_base'))
+const technicianOf = preparedQuery(db => db.select({ id: users.id, name: users.name, homeLatitude: staffProfiles.homeLatitude, homeLongitude: staffProfiles.homeLongitude })
+  .from(users).leftJoin(staffProfiles, eq(staffProfiles.userId, users.id))
+  .where(and(eq(users.id, sql.placeholder('technicianId')), eq(users.companyId, sql.placeholder('companyId')))).limit(1).prepare('today_technician'))
+const dayVisits = preparedQuery(db => db.select({
+  id: visits.id, status: visits.status, visitType: visits.visitType, durationMinutes: visits.durationMinutes, startsAt: visits.startsAt,
+  routePosition: visits.routePosition, contractId: visits.contractId, checklist: visits.checklist,
+  customerId: customers.id, customerName: customers.name,
+  siteId: sites.id, siteName: sites.name, line1: sites.line1, city: sites.city, lat: sites.latitude, lon: sites.longitude,
+  accessNotes: sites.accessNotes, gateCode: sites.gateCode, hazards: sites.hazards, hazardNotes: sites.hazardNotes,
+}).from(visits).innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
+  .where(and(eq(visits.companyId, sql.placeholder('companyId')), eq(visits.technicianId, sql.placeholder('technicianId')), eq(visits.scheduledOn, sql.placeholder('date')), ne(visits.status, 'cancelled')))
+  .orderBy(asc(visits.startsAt), asc(visits.id)).limit(MAX_STOPS).prepare('today_visits'))
+
 /**
  * A technician's day: their visits in driving order from their home base (or the company's
  * yard), with the leg before each stop, and the expected end time. A hand-made order (route
  * positions) wins over the computed one.
  */
 export async function technicianDay(actor: SessionUser, q: { date?: string, technicianId?: string }) {
-  const db = useDb()
   const technicianId = actor.role === 'owner' && q.technicianId ? q.technicianId : actor.id
   // The date from the company's time zone (read with the session), so the company, the
   // technician and the visits load at once.
   const { timeZone } = await readerContext(actor)
   const date = q.date ?? localToday(timeZone)
   const [[company], [tech], rows] = await Promise.all([
-    db.select({ baseLatitude: companies.baseLatitude, baseLongitude: companies.baseLongitude }).from(companies).where(eq(companies.id, actor.companyId)).limit(1),
-    db.select({ id: users.id, name: users.name, homeLatitude: staffProfiles.homeLatitude, homeLongitude: staffProfiles.homeLongitude })
-      .from(users).leftJoin(staffProfiles, eq(staffProfiles.userId, users.id))
-      .where(and(eq(users.id, technicianId), eq(users.companyId, actor.companyId))).limit(1),
-    db.select({
-      id: visits.id, status: visits.status, visitType: visits.visitType, durationMinutes: visits.durationMinutes, startsAt: visits.startsAt,
-      routePosition: visits.routePosition, contractId: visits.contractId, checklist: visits.checklist,
-      customerId: customers.id, customerName: customers.name,
-      siteId: sites.id, siteName: sites.name, line1: sites.line1, city: sites.city, lat: sites.latitude, lon: sites.longitude,
-      accessNotes: sites.accessNotes, gateCode: sites.gateCode, hazards: sites.hazards, hazardNotes: sites.hazardNotes,
-    }).from(visits).innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
-      .where(and(eq(visits.companyId, actor.companyId), eq(visits.technicianId, technicianId), eq(visits.scheduledOn, date), ne(visits.status, 'cancelled')))
-      .orderBy(asc(visits.startsAt), asc(visits.id)).limit(MAX_STOPS),
+    companyBase().execute({ companyId: actor.companyId }),
+    technicianOf().execute({ technicianId, companyId: actor.companyId }),
+    dayVisits().execute({ companyId: actor.companyId, technicianId, date }),
   ])
   if (!tech) throw httpError(404, 'No such technician')
 

@@ -36,6 +36,23 @@ export function useDb(): Database {
 export { schema }
 
 /**
+ * A query built once per database instance and run as a named prepared statement: Drizzle does
+ * not build its SQL again, and PostgreSQL parses and plans it once per connection. For the reads
+ * asked most (a technician's day, a feature); values go in as `sql.placeholder(name)`.
+ *   const dayVisits = preparedQuery(db => db.select(…).where(eq(visits.id, sql.placeholder('id'))).prepare('day_visits'))
+ *   await dayVisits().execute({ id })
+ */
+export function preparedQuery<T>(build: (db: Database) => T): () => T {
+  const built = new WeakMap<Database, T>()
+  return () => {
+    const db = useDb()
+    let q = built.get(db)
+    if (!q) built.set(db, (q = build(db)))
+    return q
+  }
+}
+
+/**
  * RILLBOOK_LOG_SQL=1 (diagnostics; the bench uses it to replay an endpoint's exact statements
  * straight through pg): every statement and its parameters as one JSON line on stderr.
  */
