@@ -39,7 +39,7 @@ const technicianOf = preparedQuery(db => db.select({ id: users.id, name: users.n
   .where(and(eq(users.id, sql.placeholder('technicianId')), eq(users.companyId, sql.placeholder('companyId')))).limit(1).prepare('today_technician'))
 const dayVisits = preparedQuery(db => db.select({
   id: visits.id, status: visits.status, visitType: visits.visitType, durationMinutes: visits.durationMinutes, startsAt: visits.startsAt,
-  routePosition: visits.routePosition, contractId: visits.contractId, checklist: visits.checklist,
+  routePosition: visits.routePosition, contractId: visits.contractId, checklistItems: sql<number>`jsonb_array_length(${visits.checklist})`.mapWith(Number),
   customerId: customers.id, customerName: customers.name,
   siteId: sites.id, siteName: sites.name, line1: sites.line1, city: sites.city, lat: sites.latitude, lon: sites.longitude,
   accessNotes: sites.accessNotes, gateCode: sites.gateCode, hazards: sites.hazards, hazardNotes: sites.hazardNotes,
@@ -89,8 +89,12 @@ export async function technicianDay(actor: SessionUser, q: { date?: string, tech
     const arrive = clock ? new Date(clock.getTime() + (leg?.minutes ?? 0) * 60_000) : null
     const leave = arrive ? new Date(arrive.getTime() + r.durationMinutes * 60_000) : null
     clock = leave
-    const { checklist, lat, lon, ...rest } = r
-    return { ...rest, position: i + 1, latitude: lat, longitude: lon, checklistItems: checklist.length, features: features.get(r.id) ?? [], leg, expectedArrival: arrive, expectedDeparture: leave }
+    return {
+      id: r.id, status: r.status, visitType: r.visitType, durationMinutes: r.durationMinutes, startsAt: r.startsAt, routePosition: r.routePosition, contractId: r.contractId,
+      customerId: r.customerId, customerName: r.customerName, siteId: r.siteId, siteName: r.siteName, line1: r.line1, city: r.city,
+      accessNotes: r.accessNotes, gateCode: r.gateCode, hazards: r.hazards, hazardNotes: r.hazardNotes,
+      position: i + 1, latitude: r.lat, longitude: r.lon, checklistItems: r.checklistItems, features: features.get(r.id) ?? [], leg, expectedArrival: arrive, expectedDeparture: leave,
+    }
   })
   const workMinutes = rows.reduce((s, r) => s + r.durationMinutes, 0)
   return {
