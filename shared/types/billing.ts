@@ -50,7 +50,7 @@ export const LINE_KIND_LABELS: Record<LineKind, string> = {
 export const OFFLINE_PAYMENT_METHODS = ['cheque', 'bank_transfer', 'cash'] as const
 export type OfflinePaymentMethod = (typeof OFFLINE_PAYMENT_METHODS)[number]
 export const PAYMENT_METHOD_LABELS: Record<OfflinePaymentMethod | 'card', string> = {
-  cheque: 'Cheque', bank_transfer: 'Bank transfer', cash: 'Cash', card: 'Card (online)',
+  cheque: 'Cheque', bank_transfer: 'Bank transfer', cash: 'Cash', card: 'Online card payment',
 }
 
 /**

@@ -39,7 +39,7 @@ describe('billing in the browser', () => {
     expect(number).toMatch(/^\d{4}-\d{4}$/)
     const before = await receivables()
     await op.getByRole('button', { name: 'Send to the customer' }).click()
-    await expect.poll(() => op.getByTestId('invoice-note').textContent()).toContain('Sent: done.')
+    await expect.poll(() => op.getByTestId('invoice-note').textContent()).toContain('Sent to the customer.')
     await shot(op, 'billing-invoice-due-desktop')
 
     // The e-mail reaches the customer (the outbox is flushed by the owner's button or the minute task).
