@@ -12,7 +12,8 @@ import { httpError } from '../utils/errors'
 import { containsPattern } from '../utils/like'
 import { recordAudit } from './audit'
 
-function scope(actor: SessionUser): SQL[] {
+/** The features `actor` may see: the company's; a customer's own ones that are not archived. */
+export function featureScope(actor: SessionUser): SQL[] {
   const where: SQL[] = [eq(waterFeatures.companyId, actor.companyId)]
   const own = ownCustomerId(actor)
   if (own) where.push(eq(waterFeatures.customerId, own), isNull(waterFeatures.archivedAt))
@@ -37,7 +38,7 @@ export interface FeatureListQuery {
 
 export async function listFeatures(actor: SessionUser, q: FeatureListQuery) {
   const db = useDb()
-  const where = scope(actor)
+  const where = featureScope(actor)
   if (q.status === 'current') where.push(isNull(waterFeatures.archivedAt))
   if (q.status === 'archived') where.push(isNotNull(waterFeatures.archivedAt))
   if (q.kind) where.push(eq(waterFeatures.kind, q.kind))
@@ -82,7 +83,7 @@ export async function getFeature(actor: SessionUser, id: string) {
   }).from(waterFeatures)
     .innerJoin(sites, eq(sites.id, waterFeatures.siteId))
     .innerJoin(customers, eq(customers.id, waterFeatures.customerId))
-    .where(and(eq(waterFeatures.id, id), ...scope(actor))).limit(1)
+    .where(and(eq(waterFeatures.id, id), ...featureScope(actor))).limit(1)
   if (!row) throw httpError(404, 'No such water feature')
   const { companyId: _c, ...feature } = row.feature
   const volumeL = feature.measuredVolumeL ?? feature.computedVolumeL

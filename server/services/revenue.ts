@@ -1,10 +1,11 @@
 import { and, eq, inArray, isNotNull, ne, sql } from 'drizzle-orm'
 import { RECEIVABLE_BUCKETS, receivableBucket, daysBetween } from '../../shared/utils/billing'
 import { localToday } from '../../shared/utils/company-time'
-import { revenueFigures, type RevenueContract } from '../../shared/utils/revenue'
+import { revenueFigures, type RevenueContract, type RevenueFigures } from '../../shared/utils/revenue'
 import type { InvoiceStatus } from '../../shared/types/billing'
 import { companies, contractPlannedVisits, contracts, invoiceDayTotals, plans } from '../db/schema'
 import { useDb } from '../utils/db'
+import { counterOf, versionedCache } from '../utils/versioned-cache'
 
 /** The invoices still asking for money (receivables). */
 const RECEIVABLE: InvoiceStatus = 'due'
@@ -12,28 +13,24 @@ const RECEIVABLE: InvoiceStatus = 'due'
 const INVOICED: InvoiceStatus[] = ['due', 'paid']
 const PAID: InvoiceStatus = 'paid'
 
+/** The contract figures kept per process under the company's 'revenue' change counter. */
+const figuresCache = versionedCache<RevenueFigures>(Number(process.env.RILLBOOK_REVENUE_CACHE_ENTRIES || 64))
+
 /**
  * The owner's recurring-revenue view as of a company-local date (today by default): the
  * contract figures from shared/utils/revenue, receivables by age and invoiced revenue by plan.
  * Only the company's own currency is counted. Invoice figures come from `invoice_day_totals`
- * and planned visits from `contract_planned_visits`, both kept exact by triggers.
+ * and planned visits from `contract_planned_visits`, both kept exact by triggers. The contract
+ * figures are computed over every contract once per date and then answered from the
+ * versioned cache until the company's contracts, plans, settings or counted visits change.
  */
 export async function revenueView(companyId: string, asOfDate?: string) {
   const db = useDb()
-  const [company] = await db.select({ currency: companies.currency, timeZone: companies.timeZone }).from(companies).where(eq(companies.id, companyId)).limit(1)
+  const [company] = await db.select({ currency: companies.currency, timeZone: companies.timeZone, version: counterOf('revenue', 'companies', 'id') })
+    .from(companies).where(eq(companies.id, companyId)).limit(1)
   const tz = company!.timeZone
   const asOf = asOfDate ?? localToday(tz)
-  const rows = await db.select({
-    id: contracts.id, customerId: contracts.customerId, planId: contracts.planId, planName: plans.name, cadence: plans.billingCadence,
-    priceMinor: sql<number>`coalesce(${contracts.priceOverrideMinor}, ${plans.priceMinor})`, termMonths: plans.termMonths,
-    plannedVisits: sql<number>`case when ${plans.billingCadence} = 'per_visit' then coalesce(${contractPlannedVisits.visits}, 0) else 0 end`,
-    status: contracts.status, termStart: contracts.termStart, termEnd: contracts.termEnd,
-    endedOn: sql<string | null>`to_char(${contracts.endedAt} at time zone ${tz}, 'YYYY-MM-DD')`,
-    previousContractId: contracts.previousContractId, autoRenew: contracts.autoRenew,
-  }).from(contracts).innerJoin(plans, eq(plans.id, contracts.planId)).leftJoin(contractPlannedVisits, eq(contractPlannedVisits.contractId, contracts.id))
-    .where(and(eq(contracts.companyId, companyId), ne(contracts.status, 'draft'), eq(contracts.currency, company!.currency)))
-  const list: RevenueContract[] = rows.map(r => ({ ...r, priceMinor: Number(r.priceMinor), plannedVisits: Number(r.plannedVisits) }))
-  const figures = revenueFigures(list, asOf, new Map(rows.map(r => [r.id, r.autoRenew])))
+  const figures = await figuresCache.get(`${companyId}|${asOf}|${company!.currency}|${tz}`, company!.version, () => contractFigures(companyId, company!.currency, tz, asOf))
 
   // Receivables: what due invoices still ask for, by days past their due date.
   const t = invoiceDayTotals
@@ -61,4 +58,19 @@ export async function revenueView(companyId: string, asOfDate?: string) {
   }).sort((a, b) => b.mrrMinor - a.mrrMinor || b.invoicedMinor - a.invoicedMinor)
 
   return { currency: company!.currency, ...figures, byPlan, receivables: [...buckets.values()], receivablesTotalMinor: [...buckets.values()].reduce((s, b) => s + b.amountMinor, 0) }
+}
+
+/** The contract figures of the revenue view, from every contract of the company in its currency. */
+async function contractFigures(companyId: string, currency: string, tz: string, asOf: string): Promise<RevenueFigures> {
+  const rows = await useDb().select({
+    id: contracts.id, customerId: contracts.customerId, planId: contracts.planId, planName: plans.name, cadence: plans.billingCadence,
+    priceMinor: sql<number>`coalesce(${contracts.priceOverrideMinor}, ${plans.priceMinor})`, termMonths: plans.termMonths,
+    plannedVisits: sql<number>`case when ${plans.billingCadence} = 'per_visit' then coalesce(${contractPlannedVisits.visits}, 0) else 0 end`,
+    status: contracts.status, termStart: contracts.termStart, termEnd: contracts.termEnd,
+    endedOn: sql<string | null>`to_char(${contracts.endedAt} at time zone ${tz}, 'YYYY-MM-DD')`,
+    previousContractId: contracts.previousContractId, autoRenew: contracts.autoRenew,
+  }).from(contracts).innerJoin(plans, eq(plans.id, contracts.planId)).leftJoin(contractPlannedVisits, eq(contractPlannedVisits.contractId, contracts.id))
+    .where(and(eq(contracts.companyId, companyId), ne(contracts.status, 'draft'), eq(contracts.currency, currency)))
+  const list: RevenueContract[] = rows.map(r => ({ ...r, priceMinor: Number(r.priceMinor), plannedVisits: Number(r.plannedVisits) }))
+  return revenueFigures(list, asOf, new Map(rows.map(r => [r.id, r.autoRenew])))
 }
