@@ -99,15 +99,22 @@ BEGIN
     PERFORM change_counters_bump('revenue', ARRAY(SELECT company_id FROM old_rows WHERE contract_id IS NOT NULL AND status <> 'cancelled'));
     PERFORM change_counters_bump_sites(ARRAY(SELECT site_id FROM old_rows WHERE status = 'done'));
   ELSE
+    -- Set differences, not a join of the two transition tables (which have no index): a row
+    -- whose part did not change is in both and drops out.
     PERFORM change_counters_bump('revenue', ARRAY(
-      SELECT x.company_id FROM old_rows o JOIN new_rows n ON n.id = o.id, LATERAL (VALUES (o.company_id), (n.company_id)) AS x(company_id)
-      WHERE ((o.contract_id IS NOT NULL AND o.status <> 'cancelled') OR (n.contract_id IS NOT NULL AND n.status <> 'cancelled'))
-        AND (o.contract_id IS DISTINCT FROM n.contract_id OR o.company_id <> n.company_id OR (o.status = 'cancelled') <> (n.status = 'cancelled'))));
+      SELECT company_id FROM (
+        (SELECT id, company_id, contract_id FROM old_rows WHERE contract_id IS NOT NULL AND status <> 'cancelled'
+         EXCEPT SELECT id, company_id, contract_id FROM new_rows WHERE contract_id IS NOT NULL AND status <> 'cancelled')
+        UNION ALL
+        (SELECT id, company_id, contract_id FROM new_rows WHERE contract_id IS NOT NULL AND status <> 'cancelled'
+         EXCEPT SELECT id, company_id, contract_id FROM old_rows WHERE contract_id IS NOT NULL AND status <> 'cancelled')) d));
     PERFORM change_counters_bump_sites(ARRAY(
-      SELECT x.site_id FROM old_rows o JOIN new_rows n ON n.id = o.id, LATERAL (VALUES (o.site_id), (n.site_id)) AS x(site_id)
-      WHERE (o.status = 'done' OR n.status = 'done')
-        AND (o.status, o.site_id, o.company_id, o.scheduled_on, o.visit_type, o.started_at, o.finished_at, o.starts_at)
-          IS DISTINCT FROM (n.status, n.site_id, n.company_id, n.scheduled_on, n.visit_type, n.started_at, n.finished_at, n.starts_at)));
+      SELECT site_id FROM (
+        (SELECT id, site_id, company_id, scheduled_on, visit_type, started_at, finished_at, starts_at FROM old_rows WHERE status = 'done'
+         EXCEPT SELECT id, site_id, company_id, scheduled_on, visit_type, started_at, finished_at, starts_at FROM new_rows WHERE status = 'done')
+        UNION ALL
+        (SELECT id, site_id, company_id, scheduled_on, visit_type, started_at, finished_at, starts_at FROM new_rows WHERE status = 'done'
+         EXCEPT SELECT id, site_id, company_id, scheduled_on, visit_type, started_at, finished_at, starts_at FROM old_rows WHERE status = 'done')) d));
   END IF;
   RETURN NULL;
 END $$;

@@ -62,8 +62,14 @@ export function thin<T>(points: T[], max = MAX_POINTS): T[] {
 }
 
 type CachedSeries = Omit<FeatureSeries, 'to'>
-/** Built series kept per process under the feature's and its company's change counters. */
-const seriesCache = versionedCache<CachedSeries>(Number(process.env.RILLBOOK_SERIES_CACHE_ENTRIES || 200))
+/**
+ * Built series kept per process under the feature's and its company's change counters: up to
+ * 500 answers and 1,000,000 points and markers in all (RILLBOOK_SERIES_CACHE_POINTS).
+ */
+const seriesCache = versionedCache<CachedSeries>(500, {
+  weigh: s => s.parameters.reduce((n, p) => n + p.points.length, 0) + s.visits.length + s.doses.length + 1,
+  maxWeight: Number(process.env.RILLBOOK_SERIES_CACHE_POINTS || 1_000_000),
+})
 
 /**
  * A feature's readings as one time series per parameter, with its ranges, visits and doses, for

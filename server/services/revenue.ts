@@ -13,8 +13,8 @@ const RECEIVABLE: InvoiceStatus = 'due'
 const INVOICED: InvoiceStatus[] = ['due', 'paid']
 const PAID: InvoiceStatus = 'paid'
 
-/** The contract figures kept per process under the company's 'revenue' change counter. */
-const figuresCache = versionedCache<RevenueFigures>(Number(process.env.RILLBOOK_REVENUE_CACHE_ENTRIES || 64))
+/** The contract figures kept per process under the company's 'revenue' change counter (a few kB each: 64 companies and dates). */
+const figuresCache = versionedCache<RevenueFigures>(64)
 
 /**
  * The owner's recurring-revenue view as of a company-local date (today by default): the

@@ -9,12 +9,12 @@ import type { ChangeTopic } from '../db/schema'
  * every instance the next request after that commit computes afresh. Never approximate, never
  * stale.
  *
- * - Read the counters first (`counterOf`, in the query that checks access), then compute: a change that commits in between
- *   raises the counter again, so an answer stored under the older value is at worst computed
+ * - Read the counters first (`counterOf`, in the query that checks access), then compute: a
+ *   change that commits in between raises the counter again, so an answer stored under the older value is at worst computed
  *   from newer rows and is replaced by the next request.
  * - Concurrent requests for the same key and version share one computation (single flight); a
  *   computation that fails is not kept.
- * - At most `max` entries, the least recently used dropped first.
+ * - Bounded in entries (and optionally in weight), the least recently used dropped first.
  *
  * RILLBOOK_ANSWER_CACHE=0 turns every such cache off (each request computes).
  */
@@ -25,12 +25,27 @@ export interface VersionedCache<T> {
   readonly size: number
 }
 
-interface Entry<T> { version: string, value: Promise<T> }
+interface Entry<T> { version: string, value: Promise<T>, weight: number }
 
 const enabled = () => process.env.RILLBOOK_ANSWER_CACHE !== '0'
 
-export function versionedCache<T>(max: number): VersionedCache<T> {
+/**
+ * At most `max` entries and, with `weigh`, at most `maxWeight` in all (e.g. points of a series),
+ * so a few large answers cannot hold the process's memory; an answer heavier than that alone
+ * is answered but not kept.
+ */
+export function versionedCache<T>(max: number, opts: { weigh?: (value: T) => number, maxWeight?: number } = {}): VersionedCache<T> {
   const entries = new Map<string, Entry<T>>()
+  let weight = 0
+  const drop = (key: string) => {
+    const e = entries.get(key)
+    if (!e) return
+    weight -= e.weight
+    entries.delete(key)
+  }
+  const trim = () => {
+    while (entries.size > max || (opts.maxWeight !== undefined && weight > opts.maxWeight && entries.size > 0)) drop(entries.keys().next().value!)
+  }
   return {
     get(key, version, compute) {
       if (!enabled()) return compute()
@@ -41,16 +56,24 @@ export function versionedCache<T>(max: number): VersionedCache<T> {
         entries.set(key, hit)
         return hit.value
       }
-      const entry: Entry<T> = { version, value: compute() }
-      entry.value.catch(() => {
-        if (entries.get(key) === entry) entries.delete(key)
+      const entry: Entry<T> = { version, value: compute(), weight: 0 }
+      entry.value.then((value) => {
+        if (entries.get(key) !== entry || !opts.weigh) return
+        entry.weight = opts.weigh(value)
+        weight += entry.weight
+        trim()
+      }, () => {
+        if (entries.get(key) === entry) drop(key)
       })
-      entries.delete(key)
+      drop(key)
       entries.set(key, entry)
-      while (entries.size > max) entries.delete(entries.keys().next().value!)
+      trim()
       return entry.value
     },
-    clear: () => entries.clear(),
+    clear: () => {
+      entries.clear()
+      weight = 0
+    },
     get size() {
       return entries.size
     },

@@ -3,6 +3,7 @@ import { and, eq } from 'drizzle-orm'
 import { DateTime } from 'luxon'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import * as schema from '../../server/db/schema'
+import { equipmentSchema } from '../../shared/schemas/features'
 import { api, demo, tokenFor } from '../helpers/api'
 import { buildBook, closeTestDb, testDb } from '../helpers/billing-book'
 import { startInstance, stopInstance, type Instance } from '../helpers/instances'
@@ -136,6 +137,8 @@ describe('the series kept between changes', () => {
     const [f] = await testDb().select().from(schema.waterFeatures).where(eq(schema.waterFeatures.companyId, companyId))
     featureId = f!.id
     siteId = f!.siteId
+    // The billing book writes the feature without equipment; give it what the features API would.
+    await testDb().update(schema.waterFeatures).set({ equipment: equipmentSchema.parse({}) }).where(eq(schema.waterFeatures.id, featureId))
     customerId = f!.customerId
   }, 120_000)
   afterAll(async () => {

@@ -85,3 +85,25 @@ describe('versionedCache', () => {
     expect(await cache.get('k', '1', compute)).toBe(2)
   })
 })
+
+describe('versionedCache with a weight', () => {
+  it('keeps at most `maxWeight` in all, and does not keep an answer heavier than that alone', async () => {
+    const cache = versionedCache<number[]>(100, { weigh: v => v.length, maxWeight: 5 })
+    let runs = 0
+    const compute = (n: number) => async () => {
+      runs++
+      return Array.from({ length: n }, (_, i) => i)
+    }
+    await cache.get('a', '1', compute(3))
+    await cache.get('b', '1', compute(2))
+    expect(cache.size).toBe(2)
+    await cache.get('c', '1', compute(2)) // 7 > 5: a goes
+    expect(cache.size).toBe(2)
+    await cache.get('b', '1', compute(2))
+    expect(runs).toBe(3)
+    await cache.get('a', '1', compute(3))
+    expect(runs).toBe(4)
+    expect((await cache.get('huge', '1', compute(9))).length).toBe(9)
+    expect(cache.size).toBe(0)
+  })
+})
