@@ -30,12 +30,22 @@ export async function revenueView(companyId: string, asOfDate?: string) {
     .from(companies).where(eq(companies.id, companyId)).limit(1)
   const tz = company!.timeZone
   const asOf = asOfDate ?? localToday(tz)
-  const figures = await figuresCache.get(`${companyId}|${asOf}|${company!.currency}|${tz}`, company!.version, () => contractFigures(companyId, company!.currency, tz, asOf))
+  // The kept (or new) contract figures and the two invoice aggregates at once, on the pool.
+  const figuresOf = figuresCache.get(`${companyId}|${asOf}|${company!.currency}|${tz}`, company!.version, () => contractFigures(companyId, company!.currency, tz, asOf))
 
   // Receivables: what due invoices still ask for, by days past their due date.
   const t = invoiceDayTotals
-  const due = await db.select({ dueDate: t.dueDate, invoices: sql<number>`sum(${t.invoices})::int`, due: sql<number>`sum(${t.totalMinor} - ${t.amountPaidMinor})::bigint` })
+  const dueOf = db.select({ dueDate: t.dueDate, invoices: sql<number>`sum(${t.invoices})::int`, due: sql<number>`sum(${t.totalMinor} - ${t.amountPaidMinor})::bigint` })
     .from(t).where(and(eq(t.companyId, companyId), eq(t.status, RECEIVABLE), eq(t.currency, company!.currency))).groupBy(t.dueDate)
+
+  // Invoiced (before tax; not cancelled or written off) over the last 12 months, by the contract's plan.
+  const since = sql`(${asOf}::date - interval '12 months')::date`
+  const invoicedOf = db.select({ planId: plans.id, planName: plans.name, subtotalMinor: sql<number>`sum(${t.subtotalMinor})::bigint`, paidMinor: sql<number>`sum(case when ${t.status} = ${PAID} then ${t.subtotalMinor} else 0 end)::bigint` })
+    .from(t).innerJoin(plans, eq(plans.id, t.planId))
+    .where(and(eq(t.companyId, companyId), inArray(t.status, INVOICED), eq(t.currency, company!.currency), isNotNull(t.planId), sql`${t.issueDate} > ${since}`, sql`${t.issueDate} <= ${asOf}`))
+    .groupBy(plans.id, plans.name)
+  const [figures, due, invoiced] = await Promise.all([figuresOf, dueOf, invoicedOf])
+
   const buckets = new Map(RECEIVABLE_BUCKETS.map(b => [b, { bucket: b, count: 0, amountMinor: 0 }]))
   for (const r of due) {
     const b = buckets.get(receivableBucket(r.dueDate ? daysBetween(r.dueDate, asOf) : 0))!
@@ -43,12 +53,6 @@ export async function revenueView(companyId: string, asOfDate?: string) {
     b.amountMinor += Number(r.due)
   }
 
-  // Invoiced (before tax; not cancelled or written off) over the last 12 months, by the contract's plan.
-  const since = sql`(${asOf}::date - interval '12 months')::date`
-  const invoiced = await db.select({ planId: plans.id, planName: plans.name, subtotalMinor: sql<number>`sum(${t.subtotalMinor})::bigint`, paidMinor: sql<number>`sum(case when ${t.status} = ${PAID} then ${t.subtotalMinor} else 0 end)::bigint` })
-    .from(t).innerJoin(plans, eq(plans.id, t.planId))
-    .where(and(eq(t.companyId, companyId), inArray(t.status, INVOICED), eq(t.currency, company!.currency), isNotNull(t.planId), sql`${t.issueDate} > ${since}`, sql`${t.issueDate} <= ${asOf}`))
-    .groupBy(plans.id, plans.name)
   const invoicedByPlan = new Map(invoiced.map(r => [r.planId, r]))
   const planIds = new Set([...figures.byPlan.map(p => p.planId), ...invoicedByPlan.keys()])
   const byPlan = [...planIds].map((planId) => {
