@@ -31,6 +31,14 @@ CREATE TRIGGER change_counters_plans_upd AFTER UPDATE ON plans REFERENCING OLD T
 --> statement-breakpoint
 CREATE TRIGGER change_counters_plans_del AFTER DELETE ON plans REFERENCING OLD TABLE AS old_rows FOR EACH STATEMENT EXECUTE FUNCTION change_counters_by_company('revenue');
 --> statement-breakpoint
+-- Invoices: the revenue view's receivables and invoiced figures (read from invoice_day_totals,
+-- which row triggers keep in the same statement).
+CREATE TRIGGER change_counters_invoices_ins AFTER INSERT ON invoices REFERENCING NEW TABLE AS new_rows FOR EACH STATEMENT EXECUTE FUNCTION change_counters_by_company('invoices');
+--> statement-breakpoint
+CREATE TRIGGER change_counters_invoices_upd AFTER UPDATE ON invoices REFERENCING OLD TABLE AS old_rows NEW TABLE AS new_rows FOR EACH STATEMENT EXECUTE FUNCTION change_counters_by_company('invoices');
+--> statement-breakpoint
+CREATE TRIGGER change_counters_invoices_del AFTER DELETE ON invoices REFERENCING OLD TABLE AS old_rows FOR EACH STATEMENT EXECUTE FUNCTION change_counters_by_company('invoices');
+--> statement-breakpoint
 -- Range profiles: every series of the company reads its feature's ranges.
 CREATE TRIGGER change_counters_range_profiles_ins AFTER INSERT ON range_profiles REFERENCING NEW TABLE AS new_rows FOR EACH STATEMENT EXECUTE FUNCTION change_counters_by_company('ranges');
 --> statement-breakpoint

@@ -174,11 +174,8 @@ async function main() {
       { name: 'invoices table, first page', path: '/api/invoices?page=1&pageSize=25&sort=issueDate&dir=desc', token: owner, read: true,
         base: [session, { sql: `select i.*, c.name from invoices i join customers c on c.id = i.customer_id where i.company_id = $1 order by i.issue_date desc, i.number_year desc, i.number_seq desc, i.id desc limit 25`, params: [companyId] }, { sql: 'select currency, sum(invoices), sum(total_minor) from invoice_day_totals where company_id = $1 group by currency', params: [companyId] }] },
       { name: 'revenue view', path: '/api/revenue', token: owner, read: true,
-        // The contract figures are computed once per date and change of the company's contracts (versioned-cache): each request reads the company with its change counter and the two invoice_day_totals aggregates.
-        base: [session, { sql: `select currency, time_zone, coalesce((select cc.version from change_counters cc where cc.topic = 'revenue' and cc.subject_id = c.id), 0) from companies c where c.id = $1 limit 1`, params: [companyId] },
-          { sql: `select due_date, sum(invoices)::int, sum(total_minor - amount_paid_minor)::bigint from invoice_day_totals where company_id = $1 and status = 'due' and currency = 'USD' group by due_date`, params: [companyId] },
-          { sql: `select p.id, p.name, sum(t.subtotal_minor)::bigint, sum(case when t.status = 'paid' then t.subtotal_minor else 0 end)::bigint from invoice_day_totals t join plans p on p.id = t.plan_id
-            where t.company_id = $1 and t.status in ('due', 'paid') and t.currency = 'USD' and t.plan_id is not null and t.issue_date > (current_date - interval '12 months')::date and t.issue_date <= current_date group by p.id, p.name`, params: [companyId] }] },
+        // The view is built once per date and change of the company's contracts, plans, settings or invoices (versioned-cache): each request reads the company with its two change counters.
+        base: [session, { sql: `select currency, time_zone, coalesce((select cc.version from change_counters cc where cc.topic = 'revenue' and cc.subject_id = c.id), 0), coalesce((select cc.version from change_counters cc where cc.topic = 'invoices' and cc.subject_id = c.id), 0) from companies c where c.id = $1 limit 1`, params: [companyId] }] },
       { name: 'customers list, first page', path: '/api/customers?page=1&pageSize=25&sort=name&dir=asc&status=current', token: owner, read: true,
         base: [session, { sql: `select c.id, c.name, c.kind, c.active, c.tags, c.billing_city, c.archived_at, c.created_at,
           (select count(*)::int from water_features wf where wf.customer_id = c.id and wf.archived_at is null) as features,

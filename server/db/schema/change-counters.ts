@@ -12,8 +12,9 @@ import { bigint, pgTable, primaryKey, text, uuid } from 'drizzle-orm/pg-core'
 //   at its site (the trend charts' series).
 // - 'ranges' (company): its range profiles and companies row (time zone), which every feature's
 //   series also reads.
+// - 'invoices' (company): its invoices (the revenue view's receivables and invoiced figures).
 
-export const CHANGE_TOPICS = ['revenue', 'feature', 'ranges'] as const
+export const CHANGE_TOPICS = ['revenue', 'feature', 'ranges', 'invoices'] as const
 export type ChangeTopic = (typeof CHANGE_TOPICS)[number]
 
 export const changeCounters = pgTable('change_counters', {
