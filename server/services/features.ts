@@ -12,7 +12,8 @@ import { httpError } from '../utils/errors'
 import { containsPattern } from '../utils/like'
 import { recordAudit } from './audit'
 
-function scope(actor: SessionUser): SQL[] {
+/** The features `actor` may see: the company's; a customer's own ones that are not archived. */
+export function featureScope(actor: SessionUser): SQL[] {
   const where: SQL[] = [eq(waterFeatures.companyId, actor.companyId)]
   const own = ownCustomerId(actor)
   if (own) where.push(eq(waterFeatures.customerId, own), isNull(waterFeatures.archivedAt))
@@ -37,7 +38,7 @@ export interface FeatureListQuery {
 
 export async function listFeatures(actor: SessionUser, q: FeatureListQuery) {
   const db = useDb()
-  const where = scope(actor)
+  const where = featureScope(actor)
   if (q.status === 'current') where.push(isNull(waterFeatures.archivedAt))
   if (q.status === 'archived') where.push(isNotNull(waterFeatures.archivedAt))
   if (q.kind) where.push(eq(waterFeatures.kind, q.kind))

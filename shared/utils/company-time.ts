@@ -133,3 +133,8 @@ export function formatInstant(when: string | number | Date | null | undefined, t
 export function localDateOf(when: string | number | Date, timeZone: string): LocalDate {
   return localToday(timeZone, when instanceof Date ? when : new Date(when))
 }
+
+/** The instant a company-local calendar date begins (midnight in the company's zone). */
+export function startOfLocalDay(d: LocalDate, timeZone: string): Date {
+  return DateTime.fromISO(d, { zone: timeZone }).startOf('day').toJSDate()
+}

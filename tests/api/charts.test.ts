@@ -1,6 +1,12 @@
+import { randomUUID } from 'node:crypto'
+import { and, eq } from 'drizzle-orm'
 import { DateTime } from 'luxon'
-import { beforeAll, describe, expect, it } from 'vitest'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import * as schema from '../../server/db/schema'
+import { equipmentSchema } from '../../shared/schemas/features'
 import { api, demo, tokenFor } from '../helpers/api'
+import { buildBook, closeTestDb, testDb } from '../helpers/billing-book'
+import { startInstance, stopInstance, type Instance } from '../helpers/instances'
 
 interface Series { key: string, label: string, unit: string, points: Array<[string, number]> }
 interface Body { featureId: string, range: string, from: string | null, to: string, parameters: Series[], ranges: Record<string, unknown>, visits: Array<{ date: string, type: string, time: string }>, doses: unknown[] }
@@ -41,7 +47,9 @@ describe('GET /api/features/:id/series', () => {
     const b = r.body
     expect(b.featureId).toBe(koiId)
     expect(b.range).toBe('year')
-    expect(Date.parse(b.to) - Date.parse(b.from!)).toBe(365 * 86_400_000)
+    // From the start of the company's day 365 days ago (whole days: the answer holds all day).
+    const today = DateTime.fromISO(b.to, { zone: timeZone }).toISODate()!
+    expect(Date.parse(b.from!)).toBe(DateTime.fromISO(today, { zone: timeZone }).minus({ days: 365 }).toMillis())
     const keys = b.parameters.map(p => p.key)
     for (const k of ['temperatureC', 'pH', 'totalAmmoniaMgL', 'nh3MgL', 'khMgL', 'dissolvedOxygenMgL', 'doSaturationPct']) expect(keys).toContain(k)
     // Only measured parameters, each with its SI unit and at least one point.
@@ -106,5 +114,95 @@ describe('GET /api/features/:id/series', () => {
     const other = await api(`/api/features/${ashgroveId}/series`, { token: priya })
     expect(other.status).toBe(404)
     expect(JSON.stringify(other.body)).not.toMatch(/points/)
+  })
+})
+
+// The built series are kept per process until a change counter of the feature or its company
+// moves (server/utils/versioned-cache.ts). After every kind of change that feeds a series, the
+// test server and a second caching instance, both holding the previous step's answers, must
+// answer what an instance that keeps nothing (RILLBOOK_ANSWER_CACHE=0) computes afresh.
+describe('the series kept between changes', () => {
+  let cached: Instance
+  let fresh: Instance
+  let owner: string
+  let companyId: string
+  let featureId: string
+  let siteId: string
+  let customerId: string
+  beforeAll(async () => {
+    ;[cached, fresh] = await Promise.all([startInstance('series-b', 1), startInstance('series-fresh', 2, undefined, { RILLBOOK_ANSWER_CACHE: '0' })])
+    const book = await buildBook('series')
+    companyId = book.companyId
+    owner = await tokenFor(book.ownerEmail)
+    const [f] = await testDb().select().from(schema.waterFeatures).where(eq(schema.waterFeatures.companyId, companyId))
+    featureId = f!.id
+    siteId = f!.siteId
+    // The billing book writes the feature without equipment; give it what the features API would.
+    await testDb().update(schema.waterFeatures).set({ equipment: equipmentSchema.parse({}) }).where(eq(schema.waterFeatures.id, featureId))
+    customerId = f!.customerId
+  }, 120_000)
+  afterAll(async () => {
+    await Promise.all([stopInstance(cached), stopInstance(fresh)])
+    await closeTestDb()
+  })
+
+  const QUERIES = ['range=year', 'range=season', 'range=all', 'range=year&parameters=pH,khMgL']
+  const withoutTime = ({ to: _to, ...rest }: Body) => rest
+  async function expectFresh(step: string) {
+    for (const q of QUERIES) {
+      const path = `/api/features/${featureId}/series?${q}`
+      const want = await api<Body>(path, { token: owner, base: fresh.baseUrl })
+      expect(want.status, step).toBe(200)
+      for (const [where, base] of [['the test server', undefined], ['the second instance', cached.baseUrl]] as const) {
+        const got = await api<Body>(path, { token: owner, base })
+        expect(got.status, step).toBe(200)
+        expect(withoutTime(got.body), `${step}: ${q} on ${where}`).toEqual(withoutTime(want.body))
+      }
+    }
+  }
+  const daysAgo = (n: number) => new Date(Date.now() - n * 86_400_000)
+  const reading = (takenAt: Date, pH: number) => ({ id: randomUUID(), companyId, featureId, takenAt, temperatureC: 18, pH, khMgL: 90, overall: 'ok' as const })
+
+  it('equals a fresh computation after every kind of change', async () => {
+    await testDb().insert(schema.readings).values([reading(daysAgo(3), 7.6), reading(daysAgo(40), 7.9)])
+    await expectFresh('two readings')
+    await expectFresh('nothing changed')
+
+    await testDb().insert(schema.readings).values(reading(daysAgo(1), 6.9))
+    await expectFresh('a new reading')
+    const [last] = await testDb().select({ id: schema.readings.id }).from(schema.readings).where(and(eq(schema.readings.featureId, featureId), eq(schema.readings.pH, 6.9)))
+    await testDb().update(schema.readings).set({ pH: 7.1 }).where(eq(schema.readings.id, last!.id))
+    await expectFresh('a reading corrected')
+
+    const onDay = DateTime.fromJSDate(daysAgo(2), { zone: 'America/Chicago' }).toISODate()!
+    const [visit] = await testDb().insert(schema.visits).values({ companyId, customerId, siteId, visitType: 'routine', scheduledOn: onDay, startsAt: daysAgo(2), durationMinutes: 60, status: 'scheduled' }).returning()
+    await expectFresh('a visit planned')
+    await testDb().update(schema.visits).set({ status: 'done', startedAt: daysAgo(2), finishedAt: daysAgo(2) }).where(eq(schema.visits.id, visit!.id))
+    await expectFresh('a visit done')
+
+    await testDb().insert(schema.doses).values({ id: randomUUID(), companyId, featureId, visitId: visit!.id, productName: 'Sodium bicarbonate', amount: 450, unit: 'g', dosedAt: daysAgo(2) })
+    await expectFresh('a dose')
+
+    // The feature's own ranges, then the company's profile for its kind.
+    const edit = await api(`/api/features/${featureId}`, { method: 'PATCH', token: owner, body: { rangeOverrides: { pH: { watchBelow: 6.8, watchAbove: 8.4 } } } })
+    expect(edit.status, JSON.stringify(edit.body)).toBe(200)
+    await expectFresh('the feature\'s ranges changed')
+    const [profile] = await testDb().insert(schema.rangeProfiles).values({ companyId, key: 'water_garden', name: 'Our water gardens', ranges: { khMgL: { watchBelow: 60, source: 'set by the company' } } }).returning()
+    await expectFresh('a range profile made')
+    const patched = await api(`/api/range-profiles/${profile!.id}`, { method: 'PATCH', token: owner, body: { ranges: { khMgL: { watchBelow: 70, actBelow: 40 } } } })
+    expect(patched.status, JSON.stringify(patched.body)).toBe(200)
+    await expectFresh('a range profile edited')
+
+    // The company's units (the series stay in SI) and its time zone (the windows' days).
+    const units = await api('/api/company', { method: 'PATCH', token: owner, body: { unitSystem: 'metric' } })
+    expect(units.status, JSON.stringify(units.body)).toBe(200)
+    await expectFresh('the company\'s units changed')
+    const zone = await api('/api/company', { method: 'PATCH', token: owner, body: { timeZone: 'Pacific/Kiritimati' } })
+    expect(zone.status, JSON.stringify(zone.body)).toBe(200)
+    await expectFresh('the company\'s time zone changed')
+
+    await testDb().delete(schema.doses).where(eq(schema.doses.featureId, featureId))
+    await testDb().delete(schema.readings).where(eq(schema.readings.id, last!.id))
+    await expectFresh('a dose and a reading deleted')
   })
 })

@@ -2,7 +2,9 @@
 // (invoice_day_totals, contract_planned_visits). After each step of a sequence of invoice and
 // contract changes, made through the API and straight in the database, the view and the table's
 // count and sums must equal the same figures computed here directly from the base tables, to the
-// minor unit.
+// minor unit. The contract figures are kept per process until a change counter moves
+// (server/utils/versioned-cache.ts), so each step asks the test server and a second instance
+// (another process on the same database), both of which have the previous step's answers kept.
 import { and, eq, sql } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import * as schema from '../../server/db/schema'
@@ -10,6 +12,7 @@ import type { InvoiceStatus } from '../../shared/types/billing'
 import { revenueFigures, type RevenueContract } from '../../shared/utils/revenue'
 import { api, tokenFor } from '../helpers/api'
 import { BOOK_TODAY, buildBook, closeTestDb, testDb, type Book } from '../helpers/billing-book'
+import { startInstance, stopInstance, type Instance } from '../helpers/instances'
 
 const OPEN: InvoiceStatus = 'due'
 const PAID: InvoiceStatus = 'paid'
@@ -17,13 +20,18 @@ const PAID: InvoiceStatus = 'paid'
 let book: Book
 let owner: string
 let customerId: string
+let other: Instance
 beforeAll(async () => {
+  other = await startInstance('revenue-b', 1)
   book = await buildBook('totals')
   owner = await tokenFor(book.ownerEmail)
   const [c] = await testDb().select({ id: schema.customers.id }).from(schema.customers).where(eq(schema.customers.companyId, book.companyId))
   customerId = c!.id
 })
-afterAll(closeTestDb)
+afterAll(async () => {
+  await stopInstance(other)
+  await closeTestDb()
+})
 
 const rowsOf = async <T>(query: ReturnType<typeof sql>) => (await testDb().execute(query)).rows as T[]
 
@@ -74,10 +82,17 @@ async function directListTotals(filter: { status?: InvoiceStatus | 'overdue', fr
 }
 
 async function expectExact(step: string) {
-  for (const asOf of [BOOK_TODAY, '2027-01-31', '2027-06-30']) {
-    const view = await api(`/api/revenue?asOf=${asOf}`, { token: owner })
-    expect(view.status, step).toBe(200)
-    expect(view.body, `${step}: the revenue view as of ${asOf}`).toEqual(await directView(asOf))
+  for (const base of [undefined, other.baseUrl]) {
+    const where = base ? 'the second instance' : 'the test server'
+    for (const asOf of [BOOK_TODAY, '2027-01-31', '2027-06-30']) {
+      const view = await api(`/api/revenue?asOf=${asOf}`, { token: owner, base })
+      expect(view.status, step).toBe(200)
+      expect(view.body, `${step}: the revenue view as of ${asOf} on ${where}`).toEqual(await directView(asOf))
+    }
+    // As of the company's today (whatever day the test runs on).
+    const today = await api('/api/revenue', { token: owner, base })
+    expect(today.status, step).toBe(200)
+    expect(today.body, `${step}: the revenue view as of today on ${where}`).toEqual(await directView(today.body.asOf))
   }
   const filters = [{}, { status: OPEN }, { status: PAID }, { status: 'overdue' as const }, { from: '2027-02-01', to: '2027-03-31' }]
   for (const f of filters) {
@@ -145,5 +160,25 @@ describe('revenue totals kept by the database', () => {
     await testDb().delete(schema.invoiceLines).where(eq(schema.invoiceLines.invoiceId, b.id))
     await testDb().delete(schema.invoices).where(eq(schema.invoices.id, b.id))
     await expectExact('an invoice deleted')
+
+    // A plan's price, a contract's term and price written straight in the database, a new contract.
+    const [perVisit] = await testDb().select({ planId: schema.contracts.planId }).from(schema.contracts).where(eq(schema.contracts.id, k4))
+    const plan = await api(`/api/plans/${perVisit!.planId}`, { method: 'PATCH', token: owner, body: { priceMinor: 31_000 } })
+    expect(plan.status, JSON.stringify(plan.body)).toBe(200)
+    await expectExact('a plan\'s price changed')
+    await testDb().update(schema.contracts).set({ termEnd: '2027-08-31', priceOverrideMinor: 27_500 }).where(eq(schema.contracts.id, k4))
+    await expectExact('a contract\'s term and price changed')
+    const [k6] = await testDb().insert(schema.contracts).values({ companyId: book.companyId, customerId, planId: perVisit!.planId, status: 'active', termStart: '2027-01-20', termEnd: '2028-01-19', autoRenew: true, currency: 'USD', activatedAt: new Date('2027-01-20T15:00:00Z') }).returning()
+    await expectExact('a contract added')
+    await testDb().update(schema.contracts).set({ status: 'ended', endedAt: new Date('2027-02-14T23:30:00Z') }).where(eq(schema.contracts.id, k6!.id))
+    await expectExact('a contract ended early')
+
+    // The company's settings: its time zone moves the day an ending counts on; its units change nothing.
+    const zone = await api('/api/company', { method: 'PATCH', token: owner, body: { timeZone: 'Pacific/Auckland' } })
+    expect(zone.status, JSON.stringify(zone.body)).toBe(200)
+    await expectExact('the company\'s time zone changed')
+    const units = await api('/api/company', { method: 'PATCH', token: owner, body: { unitSystem: 'metric' } })
+    expect(units.status, JSON.stringify(units.body)).toBe(200)
+    await expectExact('the company\'s units changed')
   })
 })

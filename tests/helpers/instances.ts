@@ -46,8 +46,12 @@ async function waitForHealth(inst: Instance, logFile: string) {
   throw new Error(`instance ${inst.name} did not answer at ${inst.baseUrl} (see ${logFile})`)
 }
 
-/** Instance number `n` (1, 2, …) of the built server, its output in .data/test-instance-<name>.log. */
-export async function startInstance(name: string, n: number, s3Endpoint: string): Promise<Instance> {
+/**
+ * Instance number `n` (1, 2, …) of the built server, its output in .data/test-instance-<name>.log.
+ * Without `s3Endpoint` its photos stay in the test server's folder; `env` adds settings (e.g.
+ * RILLBOOK_ANSWER_CACHE=0 for an instance that computes every answer afresh).
+ */
+export async function startInstance(name: string, n: number, s3Endpoint?: string, env: Record<string, string> = {}): Promise<Instance> {
   const port = BASE_PORT + n
   const baseUrl = `http://127.0.0.1:${port}`
   // Its database connections carry this name, so a test can see them in pg_stat_activity.
@@ -67,12 +71,9 @@ export async function startInstance(name: string, n: number, s3Endpoint: string)
       SMTP_PORT: String(inject('smtpPort')),
       SMTP_SECURE: '0',
       SMTP_USER: '',
-      RILLBOOK_UPLOADS_DRIVER: 's3',
-      RILLBOOK_S3_ENDPOINT: s3Endpoint,
-      RILLBOOK_S3_BUCKET: S3_BUCKET,
-      RILLBOOK_S3_REGION: 'us-east-1',
-      ...S3_KEYS,
+      ...(s3Endpoint ? { RILLBOOK_UPLOADS_DRIVER: 's3', RILLBOOK_S3_ENDPOINT: s3Endpoint, RILLBOOK_S3_BUCKET: S3_BUCKET, RILLBOOK_S3_REGION: 'us-east-1', ...S3_KEYS } : {}),
       RILLBOOK_PUBLIC_URL: baseUrl,
+      ...env,
     },
   })
   const logFile = resolve(root, `.data/test-instance-${name}.log`)
