@@ -163,6 +163,13 @@ async function main() {
     const { rows: [week] } = await c.query(`select (d - ((extract(isodow from d)::int - 1) * interval '1 day'))::date::text as from, (d - ((extract(isodow from d)::int - 1) * interval '1 day') + interval '6 days')::date::text as to
       from (select (now() at time zone 'America/Chicago')::date as d) x`)
     const session = { sql: `select u.id from sessions s join users u on u.id = s.user_id where s.token_hash = $1 and s.expires_at > now()`, params: ['x'] }
+    // What every board answer reads: the technicians with their capacity, and each technician-day's load of the range.
+    const boardBase = [
+      { sql: `select u.id, u.name, u.role, coalesce(sp.capacity_minutes, 420), sp.home_latitude, sp.home_longitude, sp.working_days from users u left join staff_profiles sp on sp.user_id = u.id
+        where u.company_id = $1 and u.role = 'technician' and u.active order by u.name limit 100`, params: [companyId] },
+      { sql: `select * from technician_day_loads where company_id = $1 and day between $2 and $3`, params: [companyId, week.from, week.to] },
+    ]
+    const { rows: [weekTech] } = await c.query(`select technician_id as id from visits where company_id = $1 and scheduled_on between $2 and $3 and technician_id is not null group by 1 order by count(*) desc limit 1`, [companyId, week.from, week.to])
     const cases = [
       { name: 'sign-in', method: 'POST', path: '/api/auth/login', body: { email: 'owner@larchfield-scale.example', password: 'demo-pond-2026' }, read: false,
         base: [{ sql: 'select id, password_hash from users where email = $1', params: ['owner@larchfield-scale.example'] }] },
@@ -181,12 +188,18 @@ async function main() {
           (select cc.phone from customer_contacts cc where cc.customer_id = c.id order by cc.position limit 1) as phone
           from customers c where c.company_id = $1 and c.archived_at is null order by c.name, c.id limit 25`, params: [companyId] },
         { sql: 'select count(*) from customers where company_id = $1 and archived_at is null', params: [companyId] }] },
-      { name: 'schedule week', path: `/api/schedule?from=${week.from}&to=${week.to}`, token: owner, read: true,
-        base: [session, { sql: `select v.id, v.scheduled_on, v.visit_type, v.status, v.technician_id, v.duration_minutes, v.move_reason, v.moved_manually, c.name, s.line1, s.city, s.latitude, s.longitude, u.name as technician_name
-          from visits v join customers c on c.id = v.customer_id join sites s on s.id = v.site_id left join users u on u.id = v.technician_id
-          where v.company_id = $1 and v.scheduled_on between $2 and $3 and v.status <> 'cancelled' order by v.scheduled_on, c.name limit 2000`, params: [companyId, week.from, week.to] },
-        { sql: `select u.id, u.name, sp.capacity_minutes, sp.home_latitude, sp.home_longitude, sp.working_days from users u left join staff_profiles sp on sp.user_id = u.id
-          where u.company_id = $1 and u.role = 'technician' and u.active order by u.name limit 100`, params: [companyId] }] },
+      // The owner's week at scale: more visits than one answer carries, so the answer is each
+      // technician-day's load (technician_day_loads, kept by triggers) and how many visits there are.
+      { name: 'schedule week', path: `/api/schedule?from=${week.from}&to=${week.to}&includeCancelled=true`, token: owner, read: true,
+        base: [session, ...boardBase, { sql: `select count(*)::int, count(*)::int, (count(*) filter (where technician_id is null and status = 'scheduled'))::int from visits where company_id = $1 and scheduled_on between $2 and $3`, params: [companyId, week.from, week.to] }] },
+      // One technician's week with its visit cards.
+      { name: "schedule week, one technician's visits", path: `/api/schedule?from=${week.from}&to=${week.to}&includeCancelled=true&technicianId=${weekTech?.id}`, token: owner, read: true,
+        base: [session, { sql: `select id from users where id = $1 and company_id = $2 and role <> 'customer' limit 1`, params: [weekTech?.id, companyId] }, ...boardBase,
+          { sql: `select count(*)::int, (count(*) filter (where technician_id = $4))::int, (count(*) filter (where technician_id = $4 and technician_id is null and status = 'scheduled'))::int from visits where company_id = $1 and scheduled_on between $2 and $3`, params: [companyId, week.from, week.to, weekTech?.id] },
+          { sql: `select v.id, v.status, v.visit_type, v.scheduled_on, v.starts_at, v.duration_minutes, v.technician_id, u.name, v.moved_manually, v.move_reason, v.status_reason, v.contract_id, v.customer_id, c.name,
+            v.site_id, s.name, s.line1, s.city, s.latitude, s.longitude
+            from visits v join customers c on c.id = v.customer_id join sites s on s.id = v.site_id left join users u on u.id = v.technician_id
+            where v.company_id = $1 and v.scheduled_on between $2 and $3 and v.technician_id = $4 order by v.scheduled_on, c.name, v.id`, params: [companyId, week.from, week.to, weekTech?.id] }] },
       { name: 'POST /api/water/evaluate', method: 'POST', path: '/api/water/evaluate', token: owner, read: true, body: { volumeL: 12000, kind: 'koi_pond', reading: { temperatureC: 24, pH: 8.1, totalAmmoniaMgL: 0.5, khMgL: 90 } },
         base: [session] },
     ]
