@@ -133,7 +133,7 @@ async function technicianDayLoads(companyId: string, from: string, to: string, c
  * The week and month boards: each technician-day's load between two dates (visit time and
  * driving against capacity, every technician, whatever is filtered), and the visit cards of the
  * range, or of the technician or day picked in it, when they are at most BOARD_VISIT_LIMIT.
- * With more, `visits` is empty and `tooMany` says how many there are: never a cut list.
+ * With more, `visits` is empty and `tooMany` says so: never a cut list.
  */
 export async function board(actor: SessionUser, q: BoardQuery) {
   const db = useDb()
@@ -147,17 +147,20 @@ export async function board(actor: SessionUser, q: BoardQuery) {
   if (q.visitType) where.push(eq(visits.visitType, q.visitType))
   // The technician picked (or nobody), as before; the day picked narrows the cards only.
   const ofTechnician = q.technicianId === 'unassigned' ? isNull(visits.technicianId) : q.technicianId ? eq(visits.technicianId, q.technicianId) : sql`true`
-  const picked = and(ofTechnician, q.day ? eq(visits.scheduledOn, q.day) : undefined)!
-  const [technicians, [counted]] = await Promise.all([
+  const pick = and(ofTechnician, q.day ? eq(visits.scheduledOn, q.day) : undefined)!
+  const hasPick = !!q.technicianId || !!q.day
+  const base = and(...where)!
+  // Counting stops one past the limit: over the company-and-date index alone that reads at most
+  // that many index entries (when cancelled visits are included), however full the range is.
+  const countUpTo = async (cond: SQL) => (await db.execute<{ n: number }>(sql`select count(*)::int as n from (select 1 from ${visits} where ${cond} limit ${BOARD_VISIT_LIMIT + 1}) x`)).rows[0]?.n ?? 0
+  const [technicians, inRange, [unassigned]] = await Promise.all([
     listTechnicians(actor),
-    db.select({
-      range: sql<number>`count(*)::int`,
-      visits: sql<number>`(count(*) filter (where ${picked}))::int`,
-      unassigned: sql<number>`(count(*) filter (where ${ofTechnician} and ${visits.technicianId} is null and ${visits.status} = 'scheduled'))::int`,
-    }).from(visits).where(and(...where)),
+    countUpTo(base),
+    // Unassigned visits are found through the technician-and-date index (technician_id is null).
+    db.select({ n: sql<number>`count(*)::int` }).from(visits).where(and(base, ofTechnician, isNull(visits.technicianId), eq(visits.status, 'scheduled'))),
   ])
-  const count = counted?.visits ?? 0
-  const tooMany = count > BOARD_VISIT_LIMIT
+  const large = inRange > BOARD_VISIT_LIMIT
+  const tooMany = large && (!hasPick || (await countUpTo(and(base, pick)!)) > BOARD_VISIT_LIMIT)
   const techById = new Map(technicians.map(t => [t.id, t]))
   const [rows, load] = await Promise.all([
     tooMany
@@ -165,13 +168,17 @@ export async function board(actor: SessionUser, q: BoardQuery) {
       : db.select(visitColumns).from(visits)
           .innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
           .leftJoin(users, eq(users.id, visits.technicianId))
-          .where(and(...where, picked)).orderBy(asc(visits.scheduledOn), asc(customers.name), asc(visits.id)),
+          .where(and(base, pick)).orderBy(asc(visits.scheduledOn), asc(customers.name), asc(visits.id)),
     technicianDayLoads(actor.companyId, q.from, q.to, tid => techById.get(tid)?.capacityMinutes ?? DEFAULT_CAPACITY_MINUTES),
   ])
   return {
     from: q.from, to: q.to, day: q.day ?? null, visits: rows, technicians, load,
-    visitCount: count, rangeVisits: counted?.range ?? 0, tooMany: tooMany ? { visits: count, limit: BOARD_VISIT_LIMIT } : null,
-    unassigned: counted?.unassigned ?? 0,
+    /** Every visit of the pick (or the range), never cut; null when there are more than BOARD_VISIT_LIMIT. */
+    visitCount: tooMany ? null : rows.length,
+    /** The range holds more visits than one answer carries: the page leads with the load overview. */
+    large,
+    tooMany: tooMany ? { limit: BOARD_VISIT_LIMIT } : null,
+    unassigned: unassigned?.n ?? 0,
   }
 }
 

@@ -208,8 +208,9 @@ describe('a range with more visits than one answer carries', () => {
     const all = await api(`/api/schedule?from=${week.from}&to=${week.to}`, { token: owner })
     expect(all.status).toBe(200)
     expect(all.body.visits).toEqual([])
-    expect(all.body.tooMany).toEqual({ visits: n, limit: BOARD_VISIT_LIMIT })
-    expect(all.body.rangeVisits).toBe(n)
+    expect(all.body.tooMany).toEqual({ limit: BOARD_VISIT_LIMIT })
+    expect(all.body.visitCount).toBeNull()
+    expect(all.body.large).toBe(true)
     expect(all.body.unassigned).toBe(Math.floor((BOARD_VISIT_LIMIT + 200) / 3))
     // The overview still has every technician-day, with every visit counted.
     const counted = Object.values(all.body.load as Record<string, Record<string, Load>>).flatMap(Object.values).reduce((s, l) => s + l.visits, 0)
@@ -230,12 +231,15 @@ describe('a range with more visits than one answer carries', () => {
       expect(r.body.tooMany, q).toBeNull()
       expect(r.body.visitCount, q).toBe(m)
       expect(r.body.visits, q).toHaveLength(m)
-      expect(r.body.rangeVisits).toBe(n)
+      expect(r.body.large).toBe(true)
     }
-    // A month holding them, with a smaller answer limit than its visits: still the count, no cards.
+    // A month holding them says so too; a range beside them is small and has every card.
     const month = await api(`/api/schedule?from=${year}-07-27&to=${year}-09-06`, { token: owner })
-    expect(month.body.visits).toEqual([])
-    expect(month.body.tooMany.visits).toBe(month.body.rangeVisits)
+    expect(month.body).toMatchObject({ visits: [], tooMany: { limit: BOARD_VISIT_LIMIT }, large: true })
+    const before = await api(`/api/schedule?from=${year}-07-20&to=${year}-08-01`, { token: owner })
+    const [{ k }] = await rowsOf<{ k: number }>(sql`select count(*)::int as k from visits where company_id = ${companyId} and scheduled_on between ${`${year}-07-20`} and ${`${year}-08-01`} and status <> 'cancelled'`)
+    expect(before.body).toMatchObject({ large: false, tooMany: null, visitCount: k })
+    expect(before.body.visits).toHaveLength(k)
   })
 
   it('checks role and ownership on the picks: another company\'s technician is not found, a day outside the range is a 400 naming it', async () => {
