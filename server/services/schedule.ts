@@ -1,6 +1,6 @@
 import { and, asc, count, eq, gte, inArray, isNull, lte, ne, sql, type SQL } from 'drizzle-orm'
 import type { z } from 'zod'
-import { dayLoad, type DayLoad, type DayLoadStop } from '../../shared/utils/day-load'
+import { dayLoad, type DayLoad } from '../../shared/utils/day-load'
 import { BOARD_VISIT_LIMIT, type boardQuery, type StaffProfileInput, type VisitUpdateInput } from '../../shared/schemas/visits'
 import { addDays, formatLocalDate, localToday } from '../../shared/utils/company-time'
 import { localTimeToInstant } from '../../shared/utils/recurrence'
@@ -83,7 +83,7 @@ async function technicianDayLoads(companyId: string, from: string, to: string, c
     .where(and(eq(technicianDayLoadsTable.companyId, companyId), gte(technicianDayLoadsTable.day, from), lte(technicianDayLoadsTable.day, to)))
   const figures = new Map(rows.map(r => [`${r.day}|${r.technicianId}`, r]))
   if (rows.some(r => r.drivingMinutes == null)) {
-    type Stop = DayLoadStop & { technicianId: string, day: string, version: string, homeLat: number | null, homeLon: number | null }
+    type Stop = { id: string, durationMinutes: number, lat: number | null, lon: number | null, technicianId: string, day: string, version: string, homeLat: number | null, homeLon: number | null }
     const { rows: stale } = await db.execute<Stop>(sql`
       select l.technician_id as "technicianId", l.day::text as day, l.version::text as version, v.id, v.duration_minutes as "durationMinutes",
         s.latitude as lat, s.longitude as lon, sp.home_latitude as "homeLat", sp.home_longitude as "homeLon"
