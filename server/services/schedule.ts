@@ -137,11 +137,6 @@ async function technicianDayLoads(companyId: string, from: string, to: string, c
  */
 export async function board(actor: SessionUser, q: BoardQuery) {
   const db = useDb()
-  if (q.technicianId && q.technicianId !== 'unassigned') {
-    const [staff] = await db.select({ id: users.id }).from(users)
-      .where(and(eq(users.id, q.technicianId), eq(users.companyId, actor.companyId), ne(users.role, 'customer'))).limit(1)
-    if (!staff) throw httpError(404, 'No such technician')
-  }
   const where: SQL[] = [eq(visits.companyId, actor.companyId), gte(visits.scheduledOn, q.from), lte(visits.scheduledOn, q.to)]
   if (!q.includeCancelled) where.push(ne(visits.status, 'cancelled'))
   if (q.visitType) where.push(eq(visits.visitType, q.visitType))
@@ -152,13 +147,22 @@ export async function board(actor: SessionUser, q: BoardQuery) {
   const base = and(...where)!
   // Counting stops one past the limit: over the company-and-date index alone that reads at most
   // that many index entries (when cancelled visits are included), however full the range is.
-  const countUpTo = async (cond: SQL) => (await db.execute<{ n: number }>(sql`select count(*)::int as n from (select 1 from ${visits} where ${cond} limit ${BOARD_VISIT_LIMIT + 1}) x`)).rows[0]?.n ?? 0
-  const [technicians, inRange, [unassigned]] = await Promise.all([
+  const upTo = (cond: SQL) => sql`(select count(*)::int from (select 1 from ${visits} where ${cond} limit ${BOARD_VISIT_LIMIT + 1}) x)`
+  const countUpTo = async (cond: SQL) => (await db.execute<{ n: number }>(sql`select ${upTo(cond)} as n`)).rows[0]?.n ?? 0
+  const [technicians, { rows: [counted] }] = await Promise.all([
     listTechnicians(actor),
-    countUpTo(base),
-    // Unassigned visits are found through the technician-and-date index (technician_id is null).
-    db.select({ n: sql<number>`count(*)::int` }).from(visits).where(and(base, ofTechnician, isNull(visits.technicianId), eq(visits.status, 'scheduled'))),
+    // In one statement: the range's visits up to the limit, and the unassigned ones (found
+    // through the technician-and-date index, technician_id is null).
+    db.execute<{ inRange: number, unassigned: number }>(sql`select ${upTo(base)} as "inRange",
+      (select count(*)::int from ${visits} where ${and(base, ofTechnician, isNull(visits.technicianId), eq(visits.status, 'scheduled'))}) as unassigned`),
   ])
+  // A technician picked who is not among the active technicians listed: still this company's staff?
+  if (q.technicianId && q.technicianId !== 'unassigned' && !technicians.some(t => t.id === q.technicianId)) {
+    const [staff] = await db.select({ id: users.id }).from(users)
+      .where(and(eq(users.id, q.technicianId), eq(users.companyId, actor.companyId), ne(users.role, 'customer'))).limit(1)
+    if (!staff) throw httpError(404, 'No such technician')
+  }
+  const inRange = counted?.inRange ?? 0
   const large = inRange > BOARD_VISIT_LIMIT
   const tooMany = large && (!hasPick || (await countUpTo(and(base, pick)!)) > BOARD_VISIT_LIMIT)
   const techById = new Map(technicians.map(t => [t.id, t]))
@@ -178,7 +182,7 @@ export async function board(actor: SessionUser, q: BoardQuery) {
     /** The range holds more visits than one answer carries: the page leads with the load overview. */
     large,
     tooMany: tooMany ? { limit: BOARD_VISIT_LIMIT } : null,
-    unassigned: unassigned?.n ?? 0,
+    unassigned: counted?.unassigned ?? 0,
   }
 }
 
