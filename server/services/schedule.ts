@@ -1,10 +1,10 @@
 import { and, asc, count, eq, gte, inArray, isNull, lte, ne, sql, type SQL } from 'drizzle-orm'
-import type { StaffProfileInput, VisitUpdateInput } from '../../shared/schemas/visits'
-import type { VisitType } from '../../shared/types/schedule'
-import { dayLoad, type DayLoad, type DayLoadStop } from '../../shared/utils/day-load'
+import type { z } from 'zod'
+import { dayLoad, type DayLoad } from '../../shared/utils/day-load'
+import { BOARD_VISIT_LIMIT, type boardQuery, type StaffProfileInput, type VisitUpdateInput } from '../../shared/schemas/visits'
 import { addDays, formatLocalDate, localToday } from '../../shared/utils/company-time'
 import { localTimeToInstant } from '../../shared/utils/recurrence'
-import { companies, contractFeatures, customers, sites, staffProfiles, users, visits, waterFeatures } from '../db/schema'
+import { companies, contractFeatures, customers, sites, staffProfiles, technicianDayLoads as technicianDayLoadsTable, users, visits, waterFeatures } from '../db/schema'
 import { ownCustomerId, type SessionUser } from '../utils/auth'
 import { preparedQuery, useDb } from '../utils/db'
 import { httpError } from '../utils/errors'
@@ -12,6 +12,7 @@ import { recordAudit } from './audit'
 import { releasedWords, takeTechnicianOff } from './technician-days'
 
 const DEFAULT_CAPACITY_MINUTES = 420
+type BoardQuery = z.output<typeof boardQuery>
 
 /** Staff who can be given visits, with their capacity and home base. */
 export async function listTechnicians(actor: SessionUser) {
@@ -65,56 +66,124 @@ const visitColumns = {
   siteLatitude: sites.latitude, siteLongitude: sites.longitude,
 }
 
-/**
- * dayLoad is pure but costly (the stops' driving order: ~15 ms for 40 stops), and a board asks for
- * every technician-day of its range on each load. Its answers are kept by their exact inputs, so
- * an entry can never be stale: a moved, added or re-timed stop, or a new home, is a new key.
- */
-const dayLoads = new Map<string, DayLoad>()
-function rememberedDayLoad(stops: DayLoadStop[], home: { lat: number, lon: number } | null, capacityMinutes: number): DayLoad {
-  const key = `${home ? `${home.lat},${home.lon}` : '-'}|${capacityMinutes}|${stops.map(s => `${s.id}:${s.durationMinutes}:${s.lat}:${s.lon}`).join(';')}`
-  const known = dayLoads.get(key)
-  if (known) return { ...known }
-  const load = dayLoad(stops, home, capacityMinutes)
-  if (dayLoads.size >= 20_000) dayLoads.clear()
-  dayLoads.set(key, load)
-  return { ...load }
+export interface TechnicianDayLoad extends DayLoad {
+  /** Visits that count for the day: assigned, not cancelled or skipped. */
+  visits: number
 }
 
-/** Visits between two dates for the week and month boards, with each technician's load per day (driving included). */
-export async function board(actor: SessionUser, q: { from: string, to: string, technicianId?: string, visitType?: VisitType, includeCancelled: boolean }) {
+/**
+ * Each technician-day's load between two dates, from technician_day_loads (kept by triggers).
+ * Days whose driving the triggers cleared are computed here with shared/utils/day-load.ts from
+ * their stops, read in one statement with the version they belong to, and stored for that version
+ * only (a change meanwhile took a new version and stays to be computed). Capacity is read live.
+ */
+async function technicianDayLoads(companyId: string, from: string, to: string, capacityOf: (technicianId: string) => number) {
+  const db = useDb()
+  const rows = await db.select().from(technicianDayLoadsTable)
+    .where(and(eq(technicianDayLoadsTable.companyId, companyId), gte(technicianDayLoadsTable.day, from), lte(technicianDayLoadsTable.day, to)))
+  const figures = new Map(rows.map(r => [`${r.day}|${r.technicianId}`, r]))
+  if (rows.some(r => r.drivingMinutes == null)) {
+    type Stop = { id: string, durationMinutes: number, lat: number | null, lon: number | null, technicianId: string, day: string, version: string, homeLat: number | null, homeLon: number | null }
+    const { rows: stale } = await db.execute<Stop>(sql`
+      select l.technician_id as "technicianId", l.day::text as day, l.version::text as version, v.id, v.duration_minutes as "durationMinutes",
+        s.latitude as lat, s.longitude as lon, sp.home_latitude as "homeLat", sp.home_longitude as "homeLon"
+      from technician_day_loads l
+      join visits v on v.company_id = l.company_id and v.technician_id = l.technician_id and v.scheduled_on = l.day and v.status not in ('cancelled', 'skipped')
+      join sites s on s.id = v.site_id
+      left join staff_profiles sp on sp.user_id = l.technician_id
+      where l.company_id = ${companyId} and l.day between ${from} and ${to} and l.driving_minutes is null
+      order by l.day, l.technician_id, v.id`)
+    for (const r of rows) if (r.drivingMinutes == null) figures.delete(`${r.day}|${r.technicianId}`)
+    const days = new Map<string, Stop[]>()
+    for (const s of stale) {
+      const key = `${s.day}|${s.technicianId}`
+      days.set(key, [...(days.get(key) ?? []), s])
+    }
+    const computed = [...days.values()].map((stops) => {
+      const first = stops[0]!
+      const start = first.homeLat != null && first.homeLon != null ? { lat: first.homeLat, lon: first.homeLon } : null
+      const load = dayLoad(stops, start, capacityOf(first.technicianId))
+      figures.set(`${first.day}|${first.technicianId}`, {
+        companyId, technicianId: first.technicianId, day: first.day, visits: stops.length, visitMinutes: load.visitMinutes,
+        drivingMinutes: load.drivingMinutes, stopsWithoutPlace: load.stopsWithoutPlace, version: Number(first.version),
+      })
+      return { technician_id: first.technicianId, day: first.day, version: first.version, driving: load.drivingMinutes, without: load.stopsWithoutPlace }
+    })
+    if (computed.length) {
+      await db.execute(sql`
+        update technician_day_loads t set driving_minutes = x.driving, stops_without_place = x.without
+        from jsonb_to_recordset(${JSON.stringify(computed)}::jsonb) as x(technician_id uuid, day date, version bigint, driving double precision, without integer)
+        where t.company_id = ${companyId} and t.technician_id = x.technician_id and t.day = x.day and t.version = x.version`)
+    }
+  }
+  const load: Record<string, Record<string, TechnicianDayLoad>> = {}
+  for (const r of [...figures.values()].sort((a, b) => a.day.localeCompare(b.day))) {
+    const capacityMinutes = capacityOf(r.technicianId)
+    const drivingMinutes = r.drivingMinutes ?? 0
+    const totalMinutes = r.visitMinutes + drivingMinutes
+    ;(load[r.day] ??= {})[r.technicianId] = {
+      visits: r.visits, visitMinutes: r.visitMinutes, drivingMinutes, totalMinutes, capacityMinutes,
+      over: totalMinutes > capacityMinutes, stopsWithoutPlace: r.stopsWithoutPlace ?? 0,
+    }
+  }
+  return load
+}
+
+/**
+ * The week and month boards: each technician-day's load between two dates (visit time and
+ * driving against capacity, every technician, whatever is filtered), and the visit cards of the
+ * range, or of the technician or day picked in it, when they are at most BOARD_VISIT_LIMIT.
+ * With more, `visits` is empty and `tooMany` says so: never a cut list.
+ */
+export async function board(actor: SessionUser, q: BoardQuery) {
   const db = useDb()
   const where: SQL[] = [eq(visits.companyId, actor.companyId), gte(visits.scheduledOn, q.from), lte(visits.scheduledOn, q.to)]
   if (!q.includeCancelled) where.push(ne(visits.status, 'cancelled'))
-  if (q.technicianId === 'unassigned') where.push(isNull(visits.technicianId))
-  else if (q.technicianId) where.push(eq(visits.technicianId, q.technicianId))
   if (q.visitType) where.push(eq(visits.visitType, q.visitType))
-  const [rows, technicians] = await Promise.all([
-    db.select(visitColumns).from(visits)
-      .innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
-      .leftJoin(users, eq(users.id, visits.technicianId))
-      .where(and(...where)).orderBy(asc(visits.scheduledOn), asc(customers.name)).limit(2000),
+  // The technician picked (or nobody), as before; the day picked narrows the cards only.
+  const ofTechnician = q.technicianId === 'unassigned' ? isNull(visits.technicianId) : q.technicianId ? eq(visits.technicianId, q.technicianId) : sql`true`
+  const pick = and(ofTechnician, q.day ? eq(visits.scheduledOn, q.day) : undefined)!
+  const hasPick = !!q.technicianId || !!q.day
+  const base = and(...where)!
+  // Counting stops one past the limit: over the company-and-date index alone that reads at most
+  // that many index entries (when cancelled visits are included), however full the range is.
+  const upTo = (cond: SQL) => sql`(select count(*)::int from (select 1 from ${visits} where ${cond} limit ${BOARD_VISIT_LIMIT + 1}) x)`
+  const countUpTo = async (cond: SQL) => (await db.execute<{ n: number }>(sql`select ${upTo(cond)} as n`)).rows[0]?.n ?? 0
+  const [technicians, { rows: [counted] }] = await Promise.all([
     listTechnicians(actor),
+    // In one statement: the range's visits up to the limit, and the unassigned ones (found
+    // through the technician-and-date index, technician_id is null).
+    db.execute<{ inRange: number, unassigned: number }>(sql`select ${upTo(base)} as "inRange",
+      (select count(*)::int from ${visits} where ${and(base, ofTechnician, isNull(visits.technicianId), eq(visits.status, 'scheduled'))}) as unassigned`),
   ])
-  // Each technician-day: visit time plus driving between its stops (shared/utils/day-load, the
-  // numbers the board shows), against the technician's capacity. Cancelled and skipped visits take no time.
-  const stopsOf = new Map<string, Map<string, DayLoadStop[]>>()
-  for (const v of rows) {
-    if (!v.technicianId || v.status === 'cancelled' || v.status === 'skipped') continue
-    const day = stopsOf.get(v.scheduledOn) ?? new Map<string, DayLoadStop[]>()
-    stopsOf.set(v.scheduledOn, day.set(v.technicianId, [...(day.get(v.technicianId) ?? []), { id: v.id, durationMinutes: v.durationMinutes, lat: v.siteLatitude, lon: v.siteLongitude }]))
+  // A technician picked who is not among the active technicians listed: still this company's staff?
+  if (q.technicianId && q.technicianId !== 'unassigned' && !technicians.some(t => t.id === q.technicianId)) {
+    const [staff] = await db.select({ id: users.id }).from(users)
+      .where(and(eq(users.id, q.technicianId), eq(users.companyId, actor.companyId), ne(users.role, 'customer'))).limit(1)
+    if (!staff) throw httpError(404, 'No such technician')
   }
+  const inRange = counted?.inRange ?? 0
+  const large = inRange > BOARD_VISIT_LIMIT
+  const tooMany = large && (!hasPick || (await countUpTo(and(base, pick)!)) > BOARD_VISIT_LIMIT)
   const techById = new Map(technicians.map(t => [t.id, t]))
-  const load: Record<string, Record<string, DayLoad>> = {}
-  for (const [day, perTech] of stopsOf) {
-    load[day] = {}
-    for (const [tid, stops] of perTech) {
-      const t = techById.get(tid)
-      const home = t?.homeLatitude != null && t.homeLongitude != null ? { lat: t.homeLatitude, lon: t.homeLongitude } : null
-      load[day][tid] = rememberedDayLoad(stops, home, t?.capacityMinutes ?? DEFAULT_CAPACITY_MINUTES)
-    }
+  const [rows, load] = await Promise.all([
+    tooMany
+      ? Promise.resolve([])
+      : db.select(visitColumns).from(visits)
+          .innerJoin(customers, eq(customers.id, visits.customerId)).innerJoin(sites, eq(sites.id, visits.siteId))
+          .leftJoin(users, eq(users.id, visits.technicianId))
+          .where(and(base, pick)).orderBy(asc(visits.scheduledOn), asc(customers.name), asc(visits.id)),
+    technicianDayLoads(actor.companyId, q.from, q.to, tid => techById.get(tid)?.capacityMinutes ?? DEFAULT_CAPACITY_MINUTES),
+  ])
+  return {
+    from: q.from, to: q.to, day: q.day ?? null, visits: rows, technicians, load,
+    /** Every visit of the pick (or the range), never cut; null when there are more than BOARD_VISIT_LIMIT. */
+    visitCount: tooMany ? null : rows.length,
+    /** The range holds more visits than one answer carries: the page leads with the load overview. */
+    large,
+    tooMany: tooMany ? { limit: BOARD_VISIT_LIMIT } : null,
+    unassigned: counted?.unassigned ?? 0,
   }
-  return { from: q.from, to: q.to, visits: rows, technicians, load, unassigned: rows.filter(v => !v.technicianId && v.status === 'scheduled').length }
 }
 
 export async function getVisit(actor: SessionUser, id: string) {

@@ -8,8 +8,17 @@ export const boardQuery = z.object({
   technicianId: z.union([z.uuid(), z.literal('unassigned')]).optional(),
   visitType: z.enum(VISIT_TYPES).optional(),
   includeCancelled: z.coerce.boolean().default(false),
+  /** Visit cards of this one day only; the load of every technician-day still covers the whole range. */
+  day: localDate.optional(),
 }).refine(q => q.to >= q.from, { path: ['to'], message: 'The end is before the start' })
   .refine(q => (Date.parse(q.to) - Date.parse(q.from)) / 86_400_000 <= 62, { path: ['to'], message: 'Ask for at most 62 days at a time' })
+  .refine(q => q.day === undefined || (q.day >= q.from && q.day <= q.to), { path: ['day'], message: 'Pick a day inside the range shown' })
+
+/**
+ * The most visit cards one board answer carries. A range (or a technician or day picked in it)
+ * with more answers each technician-day's load and says how many visits it holds, never a cut list.
+ */
+export const BOARD_VISIT_LIMIT = 1000
 
 /** PATCH: assign, move (with a reason) or resize a visit; exactly the fields sent change. */
 export const visitUpdateSchema = updateSchema({
