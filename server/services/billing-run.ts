@@ -5,14 +5,16 @@ import { addDays, formatLocalDate, localToday } from '../../shared/utils/company
 import { companies, contracts, invoices, plans, taskRuns, visits } from '../db/schema'
 import { useDb, withSessionLock, type Tx } from '../utils/db'
 import { paymentsConfigured } from '../utils/payments'
-import { recordAudit } from './audit'
+import { recordAudits } from './audit'
 import { renewManyInTx } from './contracts'
 import { syncInvoiceToProvider } from './invoice-payments'
-import { finalizeInTx, insertDraft, queueInvoiceMail, sendInTx, type NewInvoice } from './invoices'
+import { queueInvoiceMails, raiseInvoicesInTx, type KeyedInvoice } from './invoices'
 
 export const BILLING_TASK = 'billing:renew'
 /** Contracts renewed per transaction (and per planner run). */
-const RENEWAL_BATCH = 200
+const RENEWAL_BATCH = 1000
+/** Invoices raised per transaction, and overdue reminders sent per transaction. */
+const INVOICE_BATCH = 500
 
 export interface BillingRunOptions {
   /** Only this company (tests, the owner's "run now"); every company otherwise. */
@@ -20,6 +22,8 @@ export interface BillingRunOptions {
   /** Company-local "today" for every company (tests); each company's own date otherwise. */
   today?: string
   now?: Date
+  /** Invoices (and reminders) per transaction; INVOICE_BATCH unless given (the crash test makes it small). */
+  invoiceBatch?: number
   /** Called after each unit of work is committed (the crash test kills the process here). */
   onUnit?: (done: number) => void
 }
@@ -42,17 +46,17 @@ const planLine = (c: BilledContract, start: string, end: string) => [{ kind: 'pl
 const billedBy = (c: BilledContract) => ({ companyId: c.companyId, customerId: c.customerId, contractId: c.id, currency: c.currency })
 
 /** The invoice of a yearly term (billed in advance); its key makes it once per term. */
-export function termInvoice(c: BilledContract, term: { start: string, end: string }): NewInvoice {
+export function termInvoice(c: BilledContract, term: { start: string, end: string }): KeyedInvoice {
   return { ...billedBy(c), source: 'contract_term', billingKey: `term:${c.id}`, periodStart: term.start, periodEnd: term.end, lines: planLine(c, term.start, term.end) }
 }
 
 /** The invoice of one month of a monthly contract. */
-export function monthInvoice(c: BilledContract, p: { start: string, end: string }): NewInvoice {
+export function monthInvoice(c: BilledContract, p: { start: string, end: string }): KeyedInvoice {
   return { ...billedBy(c), source: 'contract_month', billingKey: `month:${c.id}:${p.start}`, periodStart: p.start, periodEnd: p.end, lines: planLine(c, p.start, p.end) }
 }
 
 /** The invoice of one finished visit of a per-visit contract. */
-export function visitInvoice(c: BilledContract, v: { id: string, scheduledOn: string, visitType: keyof typeof VISIT_TYPE_LABELS }): NewInvoice {
+export function visitInvoice(c: BilledContract, v: { id: string, scheduledOn: string, visitType: keyof typeof VISIT_TYPE_LABELS }): KeyedInvoice {
   return {
     ...billedBy(c), visitId: v.id, source: 'visit', billingKey: `visit:${v.id}`, periodStart: v.scheduledOn, periodEnd: v.scheduledOn,
     lines: [{ kind: 'visit', description: `${VISIT_TYPE_LABELS[v.visitType]} on ${fmtDate(v.scheduledOn)} (${c.planName})`, quantity: 1, unitPriceMinor: c.priceMinor, taxable: true }],
@@ -88,17 +92,36 @@ async function billingRun(opts: BillingRunOptions) {
   let currentCompany = ''
   let units = 0
   const unit = async <T>(subject: string, fn: () => Promise<T>): Promise<T | undefined> => {
+    let r: T
     try {
-      const r = await fn()
-      units++
-      opts.onUnit?.(units)
-      return r
+      r = await fn()
     }
     catch (err) {
       errors.push({ companyId: currentCompany, subject, message: err instanceof Error ? err.message : String(err) })
       return undefined
     }
+    units++
+    opts.onUnit?.(units)
+    return r
   }
+  /**
+   * Work in batches, each one transaction (one unit). A batch that fails is done again one item at
+   * a time, so one bad item is reported on its own and does not hold back the rest of its batch.
+   */
+  const batched = async <T, R>(items: readonly T[], size: number, subject: (batch: readonly T[]) => string, fn: (tx: Tx, batch: readonly T[]) => Promise<R[]>): Promise<R[]> => {
+    const done: R[] = []
+    for (let i = 0; i < items.length; i += size) {
+      const batch = items.slice(i, i + size)
+      const all = await unit(subject(batch), () => db.transaction(tx => fn(tx, batch)))
+      if (all) done.push(...all)
+      else if (batch.length > 1) {
+        errors.pop()
+        for (const item of batch) done.push(...(await unit(subject([item]), () => db.transaction(tx => fn(tx, [item]))) ?? []))
+      }
+    }
+    return done
+  }
+  const invoiceBatch = Math.max(1, Math.trunc(opts.invoiceBatch ?? INVOICE_BATCH))
 
   const companyRows = await db.select({ id: companies.id, timeZone: companies.timeZone }).from(companies)
     .where(opts.companyId ? eq(companies.id, opts.companyId) : undefined).orderBy(asc(companies.id))
@@ -114,11 +137,9 @@ async function billingRun(opts: BillingRunOptions) {
         notExists(db.select({ x: sql`1` }).from(sql`contracts as next`).where(sql`next.previous_contract_id = ${contracts.id}`))))
       .orderBy(asc(contracts.termEnd), asc(contracts.id))
     // In batches: each batch is one transaction (all its renewals or none), planned together.
-    for (let i = 0; i < renewable.length; i += RENEWAL_BATCH) {
-      const batch = renewable.slice(i, i + RENEWAL_BATCH).map(c => c.id)
-      const r = await unit(batch.length === 1 ? `contract ${batch[0]}` : `contracts ${batch[0]} … ${batch.at(-1)} (${batch.length})`, () => db.transaction(tx => renewManyInTx(tx, batch, { clock })))
-      if (r) summary.renewed += r.length
-    }
+    const renewals = await batched(renewable.map(c => c.id), RENEWAL_BATCH, b => (b.length === 1 ? `contract ${b[0]}` : `contracts ${b[0]} … ${b.at(-1)} (${b.length})`),
+      (tx, b) => renewManyInTx(tx, b, { clock }))
+    summary.renewed += renewals.length
 
     // 2. End terms that are over (renewed or not).
     await unit(`company ${company.id} terms`, async () => {
@@ -127,24 +148,14 @@ async function billingRun(opts: BillingRunOptions) {
         const rows = await tx.update(contracts).set({ status: 'ended', endedAt: sql`((${contracts.termEnd} + 1)::timestamp at time zone ${company.timeZone})`, statusReason: 'Term ended' })
           .where(and(eq(contracts.companyId, company.id), inArray(contracts.status, ['active', 'paused']), lt(contracts.termEnd, today)))
           .returning({ id: contracts.id })
-        for (const r of rows) await recordAudit(tx, { action: 'contract.term_ended', companyId: company.id, subjectType: 'contract', subjectId: r.id })
+        await recordAudits(tx, rows.map(r => ({ action: 'contract.term_ended', companyId: company.id, subjectType: 'contract', subjectId: r.id })))
         return rows.length
       })
       summary.ended += ended
     })
 
-    // 3. Raise what is due: one transaction per invoice makes, numbers, issues and e-mails it.
-    const raise = async (n: NewInvoice) => {
-      const id = await unit(n.billingKey!, () => db.transaction(async (tx) => {
-        const created = await insertDraft(tx, n)
-        if (!created) return null
-        await finalizeInTx(tx, created, today)
-        await sendInTx(tx, created, `invoice:${created}:sent`)
-        await recordAudit(tx, { action: 'invoice.raised', companyId: n.companyId, subjectType: 'invoice', subjectId: created, detail: { billingKey: n.billingKey } })
-        return created
-      }))
-      if (id) summary.invoicesRaised++
-    }
+    // 3. Raise what is due, in batches: one transaction makes, numbers, issues and e-mails a batch.
+    const due: KeyedInvoice[] = []
     const priced = await db.select({
       id: contracts.id, customerId: contracts.customerId, currency: contracts.currency, termStart: contracts.termStart, termEnd: contracts.termEnd,
       cadence: plans.billingCadence, planName: plans.name, priceMinor: sql<number>`coalesce(${contracts.priceOverrideMinor}, ${plans.priceMinor})`,
@@ -155,15 +166,19 @@ async function billingRun(opts: BillingRunOptions) {
     const keyed = priced.length
       ? new Set((await db.select({ key: invoices.billingKey }).from(invoices).where(and(eq(invoices.companyId, company.id), inArray(invoices.contractId, priced.map(p => p.id))))).map(r => r.key))
       : new Set<string | null>()
+    // Most contracts share their terms: each term's months are worked out once.
+    const monthsOf = new Map<string, ReturnType<typeof monthlyPeriods>>()
     for (const c of priced) {
       const billed = { ...c, companyId: company.id }
       if (c.cadence === 'yearly') {
-        if (!keyed.has(`term:${c.id}`)) await raise(termInvoice(billed, { start: c.termStart, end: c.termEnd }))
+        if (!keyed.has(`term:${c.id}`)) due.push(termInvoice(billed, { start: c.termStart, end: c.termEnd }))
         continue
       }
-      for (const p of monthlyPeriods(c.termStart, c.termEnd)) {
+      const term = `${c.termStart}|${c.termEnd}`
+      if (!monthsOf.has(term)) monthsOf.set(term, monthlyPeriods(c.termStart, c.termEnd))
+      for (const p of monthsOf.get(term)!) {
         if (p.start > today) break
-        if (!keyed.has(`month:${c.id}:${p.start}`)) await raise(monthInvoice(billed, p))
+        if (!keyed.has(`month:${c.id}:${p.start}`)) due.push(monthInvoice(billed, p))
       }
     }
     const finishedVisits = await db.select({
@@ -174,8 +189,11 @@ async function billingRun(opts: BillingRunOptions) {
         notExists(db.select({ x: sql`1` }).from(invoices).where(and(eq(invoices.companyId, company.id), eq(invoices.billingKey, sql`'visit:' || ${visits.id}`))))))
       .orderBy(asc(visits.scheduledOn), asc(visits.id))
     for (const v of finishedVisits) {
-      await raise(visitInvoice({ id: v.contractId!, companyId: company.id, customerId: v.customerId, currency: v.currency, planName: v.planName, priceMinor: v.priceMinor }, v))
+      due.push(visitInvoice({ id: v.contractId!, companyId: company.id, customerId: v.customerId, currency: v.currency, planName: v.planName, priceMinor: v.priceMinor }, v))
     }
+    const raised = await batched(due, invoiceBatch, b => (b.length === 1 ? b[0]!.billingKey : `invoices ${b[0]!.billingKey} … ${b.at(-1)!.billingKey} (${b.length})`),
+      (tx, b) => raiseInvoicesInTx(tx, b, today))
+    summary.invoicesRaised += raised.length
 
     // 4. The provider's copies of due invoices that do not have one yet (or whose last try failed).
     if (paymentsConfigured()) {
@@ -200,24 +218,37 @@ async function billingRun(opts: BillingRunOptions) {
     const overdueRows = await db.select({ id: invoices.id, dueDate: invoices.dueDate, stage: invoices.reminderStage }).from(invoices)
       .where(and(eq(invoices.companyId, company.id), eq(invoices.status, 'due'), lte(invoices.dueDate, firstReminder), lt(invoices.reminderStage, REMINDER_DAYS.length)))
       .orderBy(asc(invoices.dueDate), asc(invoices.id))
-    for (const r of overdueRows) {
-      const days = daysBetween(r.dueDate!, today)
-      const stage = reminderStageFor(days)
-      if (stage <= r.stage) continue
-      const sent = await unit(`invoice ${r.id} reminder`, () => db.transaction(async (tx: Tx) => {
-        const [moved] = await tx.update(invoices).set({ reminderStage: stage }).where(and(eq(invoices.id, r.id), lt(invoices.reminderStage, stage), eq(invoices.status, 'due'))).returning({ id: invoices.id })
-        if (!moved) return false
-        await queueInvoiceMail(tx, r.id, 'reminder', `invoice:${r.id}:reminder:${stage}`, { daysOverdue: days })
-        await recordAudit(tx, { action: 'invoice.reminder', companyId: company.id, subjectType: 'invoice', subjectId: r.id, detail: { stage, daysOverdue: days } })
-        return true
-      }))
-      if (sent) summary.reminders++
-    }
+    const reminders = overdueRows.flatMap((r) => {
+      const daysOverdue = daysBetween(r.dueDate!, today)
+      const stage = reminderStageFor(daysOverdue)
+      return stage > r.stage ? [{ id: r.id, stage, daysOverdue }] : []
+    })
+    const sent = await batched(reminders, invoiceBatch, b => (b.length === 1 ? `invoice ${b[0]!.id} reminder` : `reminders of invoices ${b[0]!.id} … ${b.at(-1)!.id} (${b.length})`),
+      (tx, b) => sendRemindersInTx(tx, company.id, b))
+    summary.reminders += sent.length
   }
 
   await db.update(taskRuns).set({ status: errors.length ? 'done_with_errors' : 'done', finishedAt: new Date(), summary: { ...summary }, errors: errors.slice(0, 200), processed: units })
     .where(eq(taskRuns.id, run!.id))
   return { runId: run!.id, ...summary, errors }
+}
+
+/**
+ * Moves a batch of due invoices to their reminder stage (one update; an invoice paid or already at
+ * that stage meanwhile is left out) and queues one e-mail per stage reached (keyed by stage, so
+ * never twice) and the audit entries, inside the caller's transaction. Returns the reminders sent.
+ */
+async function sendRemindersInTx(tx: Tx, companyId: string, batch: ReadonlyArray<{ id: string, stage: number, daysOverdue: number }>) {
+  const { rows: moved } = await tx.execute<{ id: string }>(sql`
+    update invoices i set reminder_stage = r.stage, updated_at = now()
+    from jsonb_to_recordset(${JSON.stringify(batch)}::jsonb) as r(id uuid, stage smallint)
+    where i.id = r.id and i.company_id = ${companyId}::uuid and i.status = 'due' and i.reminder_stage < r.stage
+    returning i.id`)
+  const movedIds = new Set(moved.map(m => m.id))
+  const sent = batch.filter(r => movedIds.has(r.id))
+  await queueInvoiceMails(tx, sent.map(r => ({ invoiceId: r.id, kind: 'reminder' as const, dedupeKey: `invoice:${r.id}:reminder:${r.stage}`, daysOverdue: r.daysOverdue })))
+  await recordAudits(tx, sent.map(r => ({ action: 'invoice.reminder', companyId, subjectType: 'invoice', subjectId: r.id, detail: { stage: r.stage, daysOverdue: r.daysOverdue } })))
+  return sent
 }
 
 /** The last runs of the billing job that covered the company, with only that company's errors. */

@@ -1,10 +1,11 @@
-import { and, asc, count, desc, eq, ilike, lt, ne, or, sql, type SQL } from 'drizzle-orm'
+import { and, asc, count, desc, eq, ilike, inArray, lt, ne, or, sql, type SQL } from 'drizzle-orm'
 import type { InvoiceCreateInput, InvoiceLineInput, InvoiceListQuery, InvoiceUpdateInput } from '../../shared/schemas/billing'
 import { INVOICE_STATUS_LABELS, PAYMENT_METHOD_LABELS, type InvoiceDocument, type InvoiceSource, type InvoiceStatus } from '../../shared/types/billing'
 import { addDays, formatLocalDate, localToday } from '../../shared/utils/company-time'
 import { MONEY_MAX_MINOR } from '../../shared/schemas/fields'
 import { formatTaxRate, invoiceTotals } from '../../shared/utils/billing'
 import { formatMoney } from '../../shared/utils/money'
+import { groupRows } from '../../shared/utils/collections'
 import { companies, contracts, customers, invoiceCounters, invoiceDayTotals, invoiceLines, invoices, plans } from '../db/schema'
 import { isStaff, ownCustomerId, type SessionUser } from '../utils/auth'
 import { useDb, type Database, type Tx } from '../utils/db'
@@ -12,9 +13,9 @@ import { httpError } from '../utils/errors'
 import { escapeHtml } from '../utils/html'
 import { containsPattern } from '../utils/like'
 import { publicAppUrl } from '../utils/payments'
-import { recordAudit } from './audit'
-import { enqueueMail } from './mail'
-import { contactEmails } from './recipients'
+import { recordAudit, recordAudits } from './audit'
+import { enqueueMails, type OutgoingMail } from './mail'
+import { contactEmailsOf } from './recipients'
 
 type Db = Database | Tx
 type InvoiceRow = typeof invoices.$inferSelect
@@ -157,24 +158,32 @@ function invoiceLineRows(db: Db, invoiceId: string) {
   return db.select().from(invoiceLines).where(eq(invoiceLines.invoiceId, invoiceId)).orderBy(asc(invoiceLines.position))
 }
 
+type CompanyRow = typeof companies.$inferSelect
+type CustomerRow = typeof customers.$inferSelect
+type LineRow = typeof invoiceLines.$inferSelect
+
 /** The invoice as it is shown and printed. */
-export async function invoiceDocument(inv: InvoiceRow, db: Db = useDb(), preloadedLines?: Array<typeof invoiceLines.$inferSelect>): Promise<InvoiceDocument> {
+export async function invoiceDocument(inv: InvoiceRow, db: Db = useDb(), preloadedLines?: LineRow[]): Promise<InvoiceDocument> {
   const [c] = await db.select().from(companies).where(eq(companies.id, inv.companyId)).limit(1)
   const [cu] = await db.select().from(customers).where(eq(customers.id, inv.customerId)).limit(1)
-  const lines = preloadedLines ?? await invoiceLineRows(db, inv.id)
-  const cityLine = [cu!.billingCity, [cu!.billingRegion, cu!.billingPostcode].filter(Boolean).join(' ')].filter(Boolean).join(', ')
+  return buildInvoiceDocument(inv, c!, cu!, preloadedLines ?? await invoiceLineRows(db, inv.id))
+}
+
+/** The document of an invoice from its rows (no I/O): what invoiceDocument returns, for batches that load the rows together. */
+function buildInvoiceDocument(inv: InvoiceRow, c: CompanyRow, cu: CustomerRow, lines: readonly LineRow[]): InvoiceDocument {
+  const cityLine = [cu.billingCity, [cu.billingRegion, cu.billingPostcode].filter(Boolean).join(' ')].filter(Boolean).join(', ')
   const paidNote = inv.status === 'paid' && inv.paymentMethod
     ? `${PAYMENT_METHOD_LABELS[inv.paymentMethod as keyof typeof PAYMENT_METHOD_LABELS] ?? inv.paymentMethod}${inv.paymentReference ? `, ref. ${inv.paymentReference}` : ''}`
     : null
   return {
     number: inv.number, status: inv.status, currency: inv.currency, issueDate: inv.issueDate, dueDate: inv.dueDate,
     periodStart: inv.periodStart, periodEnd: inv.periodEnd,
-    company: { name: c!.name, addressLines: c!.address.split('\n').map(s => s.trim()).filter(Boolean), email: c!.billingEmail || null },
-    customer: { name: cu!.name, addressLines: [cu!.billingLine1, cu!.billingLine2, cityLine].filter(Boolean) },
+    company: { name: c.name, addressLines: c.address.split('\n').map(s => s.trim()).filter(Boolean), email: c.billingEmail || null },
+    customer: { name: cu.name, addressLines: [cu.billingLine1, cu.billingLine2, cityLine].filter(Boolean) },
     lines: lines.map(l => ({ description: l.description, quantity: l.quantity, unitPriceMinor: l.unitPriceMinor, amountMinor: l.amountMinor, taxable: l.taxable })),
     subtotalMinor: inv.subtotalMinor, taxRateBasisPoints: inv.taxRateBasisPoints, taxMinor: inv.taxMinor, totalMinor: inv.totalMinor,
     amountPaidMinor: inv.amountPaidMinor, amountDueMinor: inv.status === 'due' ? inv.totalMinor - inv.amountPaidMinor : 0,
-    paidAt: inv.paidAt ? localToday(c!.timeZone, inv.paidAt) : null, paymentNote: paidNote, notes: inv.notes,
+    paidAt: inv.paidAt ? localToday(c.timeZone, inv.paidAt) : null, paymentNote: paidNote, notes: inv.notes,
   }
 }
 
@@ -201,14 +210,20 @@ export async function getInvoice(actor: SessionUser, id: string) {
   return { ...base, staff: { billingKey: inv.billingKey, reminderStage: inv.reminderStage, providerInvoiceId: inv.providerInvoiceId, providerSyncedAt: inv.providerSyncedAt, providerError: inv.providerError, paymentMismatch: inv.paymentMismatch, issuedAt: inv.finalizedAt } }
 }
 
-/** Replaces the lines of an invoice being prepared and recomputes its totals from them (tax rounded once; see shared/utils/billing). */
-export async function writeLines(tx: Tx, invoiceId: string, taxRateBasisPoints: number, input: readonly InvoiceLineInput[]) {
+/** The invoice arithmetic of `lines`, refused (400) when an amount is more than an invoice can hold. */
+function checkedTotals(input: readonly InvoiceLineInput[], taxRateBasisPoints: number) {
   const totals = invoiceTotals(input, taxRateBasisPoints)
   const amounts = [totals.subtotalMinor, totals.taxMinor, totals.totalMinor, ...totals.lines.map(l => l.amountMinor)]
   if (amounts.some(a => Math.abs(a) > MONEY_MAX_MINOR)) {
     const message = 'The invoice total is more than an invoice can hold; split the lines over several invoices'
     throw httpError(400, `Invalid body: lines — ${message}`, { fields: { lines: message } })
   }
+  return totals
+}
+
+/** Replaces the lines of an invoice being prepared and recomputes its totals from them (tax rounded once; see shared/utils/billing). */
+export async function writeLines(tx: Tx, invoiceId: string, taxRateBasisPoints: number, input: readonly InvoiceLineInput[]) {
+  const totals = checkedTotals(input, taxRateBasisPoints)
   await tx.delete(invoiceLines).where(eq(invoiceLines.invoiceId, invoiceId))
   await tx.insert(invoiceLines).values(input.map((l, position) => ({
     invoiceId, position, kind: l.kind, description: l.description, quantity: l.quantity, unitPriceMinor: l.unitPriceMinor,
@@ -248,6 +263,70 @@ export async function insertDraft(tx: Tx, n: NewInvoice): Promise<string | null>
   return row.id
 }
 
+/** An invoice the billing job raises: always keyed, so it is raised once per cause. */
+export type KeyedInvoice = NewInvoice & { billingKey: string }
+
+/**
+ * Raises many invoices at once inside the caller's transaction (the billing job's batches): each
+ * is inserted already issued (numbered, dated, sent) unless its `billingKey` exists, with one
+ * insert for the invoices, one counter update per company for their numbers (gapless, in the
+ * order given), one insert of their lines, one of their e-mails and one of their audit entries.
+ * Returns the ids of the invoices made, in the order given; those whose key existed are skipped.
+ */
+export async function raiseInvoicesInTx(tx: Tx, list: readonly KeyedInvoice[], today: string): Promise<string[]> {
+  if (!list.length) return []
+  const companyRows = await tx.select({ id: companies.id, taxRateBasisPoints: companies.taxRateBasisPoints, terms: companies.paymentTermsDays })
+    .from(companies).where(inArray(companies.id, [...new Set(list.map(n => n.companyId))]))
+  const companyOf = new Map(companyRows.map(c => [c.id, c]))
+  const now = new Date().toISOString()
+  const drafts = list.map((n) => {
+    const c = companyOf.get(n.companyId)!
+    const totals = checkedTotals(n.lines, c.taxRateBasisPoints)
+    if (!n.lines.length) throw httpError(400, 'Invalid body: lines — an invoice needs at least one line', { fields: { lines: 'An invoice needs at least one line' } })
+    if (totals.totalMinor < 0) throw httpError(400, 'Invalid body: lines — the total cannot be below zero', { fields: { lines: 'The total cannot be below zero' } })
+    return { n, totals, row: {
+      company_id: n.companyId, customer_id: n.customerId, contract_id: n.contractId ?? null, visit_id: n.visitId ?? null, source: n.source,
+      billing_key: n.billingKey, currency: n.currency, tax_rate_bp: c.taxRateBasisPoints, subtotal_minor: totals.subtotalMinor, tax_minor: totals.taxMinor,
+      total_minor: totals.totalMinor, issue_date: today, due_date: addDays(today, c.terms), period_start: n.periodStart ?? null, period_end: n.periodEnd ?? null,
+      notes: n.notes ?? '', finalized_at: now, sent_at: now,
+    } }
+  })
+  // Due from the start, so the day totals' trigger counts each once; the numbers follow below
+  // (their columns are not the trigger's), and nothing outside this transaction sees the gap.
+  const { rows: made } = await tx.execute<{ id: string, company_id: string, billing_key: string }>(sql`
+    insert into invoices (company_id, customer_id, contract_id, visit_id, source, billing_key, status, currency, tax_rate_bp, subtotal_minor, tax_minor, total_minor,
+      issue_date, due_date, period_start, period_end, notes, finalized_at, sent_at)
+    select d.company_id, d.customer_id, d.contract_id, d.visit_id, d.source::invoice_source, d.billing_key, 'due', d.currency, d.tax_rate_bp, d.subtotal_minor, d.tax_minor, d.total_minor,
+      d.issue_date, d.due_date, d.period_start, d.period_end, d.notes, d.finalized_at, d.sent_at
+    from jsonb_to_recordset(${JSON.stringify(drafts.map(d => d.row))}::jsonb) as d(company_id uuid, customer_id uuid, contract_id uuid, visit_id uuid, source text, billing_key text,
+      currency text, tax_rate_bp integer, subtotal_minor integer, tax_minor integer, total_minor integer, issue_date date, due_date date, period_start date, period_end date,
+      notes text, finalized_at timestamptz, sent_at timestamptz)
+    on conflict (company_id, billing_key) do nothing
+    returning id, company_id, billing_key`)
+  if (!made.length) return []
+  const idOf = new Map(made.map(m => [`${m.company_id}|${m.billing_key}`, m.id]))
+  const created = drafts.flatMap(d => {
+    const id = idOf.get(`${d.n.companyId}|${d.n.billingKey}`)
+    return id ? [{ ...d, id }] : []
+  })
+  const year = Number(today.slice(0, 4))
+  const numbers: Array<{ id: string, number: string, seq: number }> = []
+  for (const [companyId, mine] of groupRows(created, c => c.n.companyId)) {
+    const first = await takeInvoiceNumbers(tx, companyId, year, mine.length)
+    mine.forEach((c, i) => numbers.push({ id: c.id, number: invoiceNumber(year, first + i), seq: first + i }))
+  }
+  await tx.execute(sql`
+    update invoices i set number = v.number, number_year = ${year}, number_seq = v.seq
+    from jsonb_to_recordset(${JSON.stringify(numbers)}::jsonb) as v(id uuid, number text, seq integer) where i.id = v.id`)
+  await tx.insert(invoiceLines).values(created.flatMap(c => c.n.lines.map((l, position) => ({
+    invoiceId: c.id, position, kind: l.kind, description: l.description, quantity: l.quantity, unitPriceMinor: l.unitPriceMinor,
+    amountMinor: c.totals.lines[position]!.amountMinor, taxable: l.taxable,
+  }))))
+  await queueInvoiceMails(tx, created.map(c => ({ invoiceId: c.id, kind: 'invoice' as const, dedupeKey: `invoice:${c.id}:sent` })))
+  await recordAudits(tx, created.map(c => ({ action: 'invoice.raised', companyId: c.n.companyId, subjectType: 'invoice', subjectId: c.id, detail: { billingKey: c.n.billingKey } })))
+  return created.map(c => c.id)
+}
+
 /**
  * Issues an invoice being prepared: takes the next number of the issue year from the company's counter (its row lock
  * makes numbers gapless: a rolled-back issue gives its number back), sets the issue and due
@@ -263,31 +342,79 @@ export async function finalizeInTx(tx: Tx, invoiceId: string, today?: string) {
   const [c] = await tx.select({ timeZone: companies.timeZone, terms: companies.paymentTermsDays }).from(companies).where(eq(companies.id, inv.companyId)).limit(1)
   const issueDate = today ?? localToday(c!.timeZone)
   const year = Number(issueDate.slice(0, 4))
-  const [counter] = await tx.insert(invoiceCounters).values({ companyId: inv.companyId, year, lastSeq: 1 })
-    .onConflictDoUpdate({ target: [invoiceCounters.companyId, invoiceCounters.year], set: { lastSeq: sql`${invoiceCounters.lastSeq} + 1` } })
-    .returning({ seq: invoiceCounters.lastSeq })
-  const number = `${year}-${String(counter!.seq).padStart(4, '0')}`
+  const seq = await takeInvoiceNumbers(tx, inv.companyId, year, 1)
+  const number = invoiceNumber(year, seq)
   await tx.update(invoices).set({
-    status: 'due', number, numberYear: year, numberSeq: counter!.seq, issueDate, dueDate: addDays(issueDate, c!.terms), finalizedAt: new Date(),
+    status: 'due', number, numberYear: year, numberSeq: seq, issueDate, dueDate: addDays(issueDate, c!.terms), finalizedAt: new Date(),
   }).where(eq(invoices.id, invoiceId))
   return { number, issueDate }
 }
+
+/**
+ * Takes the next `count` numbers of a company's year from its counter inside the caller's
+ * transaction and returns the first sequence number. The counter row stays locked until the
+ * transaction ends, so numbers are gapless: a rolled-back issue gives its numbers back.
+ */
+async function takeInvoiceNumbers(tx: Tx, companyId: string, year: number, count: number): Promise<number> {
+  const [counter] = await tx.insert(invoiceCounters).values({ companyId, year, lastSeq: count })
+    .onConflictDoUpdate({ target: [invoiceCounters.companyId, invoiceCounters.year], set: { lastSeq: sql`${invoiceCounters.lastSeq} + ${count}` } })
+    .returning({ seq: invoiceCounters.lastSeq })
+  return counter!.seq - count + 1
+}
+
+const invoiceNumber = (year: number, seq: number) => `${year}-${String(seq).padStart(4, '0')}`
 
 const fmtDate = (d: string) => formatLocalDate(d, 'longDate')
 
 type MailKind = 'invoice' | 'reminder' | 'receipt'
 /** Queues an invoice e-mail (the invoice, an overdue reminder, or a receipt) inside the caller's transaction. */
 export async function queueInvoiceMail(tx: Tx, invoiceId: string, kind: MailKind, dedupeKey: string, extra: { daysOverdue?: number } = {}) {
-  const [inv] = await tx.select().from(invoices).where(eq(invoices.id, invoiceId)).limit(1)
-  if (!inv?.number) return null
-  const doc = await invoiceDocument(inv, tx)
-  const to = await contactEmails(tx, inv.customerId, 'invoices')
+  return (await queueInvoiceMails(tx, [{ invoiceId, kind, dedupeKey, ...extra }]))[0] ?? null
+}
+
+export interface InvoiceMailRequest { invoiceId: string, kind: MailKind, dedupeKey: string, daysOverdue?: number }
+
+/**
+ * Queues many invoice e-mails (the billing job's batches): the invoices, their companies,
+ * customers, lines and invoice contacts are read with one query each, and the messages go into
+ * the outbox with one insert. Returns the outbox id of each (null: not numbered, no recipient, or
+ * already queued), in the order asked.
+ */
+export async function queueInvoiceMails(tx: Tx, requests: readonly InvoiceMailRequest[]): Promise<Array<string | null>> {
+  if (!requests.length) return []
+  const ids = [...new Set(requests.map(r => r.invoiceId))]
+  const invoiceRows = await tx.select().from(invoices).where(inArray(invoices.id, ids))
+  const invoiceOf = new Map(invoiceRows.map(i => [i.id, i]))
+  const numbered = invoiceRows.filter(i => i.number)
+  if (!numbered.length) return requests.map(() => null)
+  const companyRows = await tx.select().from(companies).where(inArray(companies.id, [...new Set(numbered.map(i => i.companyId))]))
+  const customerIds = [...new Set(numbered.map(i => i.customerId))]
+  const customerRows = await tx.select().from(customers).where(inArray(customers.id, customerIds))
+  const lineRows = await tx.select().from(invoiceLines).where(inArray(invoiceLines.invoiceId, numbered.map(i => i.id))).orderBy(asc(invoiceLines.invoiceId), asc(invoiceLines.position))
+  const recipients = await contactEmailsOf(tx, customerIds, 'invoices')
+  const companyOf = new Map(companyRows.map(c => [c.id, c]))
+  const customerOf = new Map(customerRows.map(c => [c.id, c]))
+  const linesOf = groupRows(lineRows, l => l.invoiceId)
+  const wanted = requests.flatMap((r) => {
+    const inv = invoiceOf.get(r.invoiceId)
+    if (!inv?.number) return []
+    const doc = buildInvoiceDocument(inv, companyOf.get(inv.companyId)!, customerOf.get(inv.customerId)!, linesOf.get(inv.id) ?? [])
+    return [{ r, message: invoiceMessage(inv, doc, recipients.get(inv.customerId) ?? [], r) }]
+  })
+  const queued = await enqueueMails(tx, wanted.map(w => w.message))
+  const idOf = new Map(wanted.map((w, i) => [w.r, queued[i] ?? null]))
+  return requests.map(r => idOf.get(r) ?? null)
+}
+
+/** The e-mail of one invoice (no I/O). */
+function invoiceMessage(inv: InvoiceRow, doc: InvoiceDocument, to: string[], req: InvoiceMailRequest): OutgoingMail {
+  const { kind, dedupeKey } = req
   const money = (m: number) => formatMoney(m, inv.currency)
   const link = `${publicAppUrl()}/portal/invoices/${inv.id}`
   const pdf = `${publicAppUrl()}/api/invoices/${inv.id}/pdf`
   const subject = {
     invoice: `Invoice ${inv.number} from ${doc.company.name}: ${money(doc.totalMinor)} due ${fmtDate(inv.dueDate!)}`,
-    reminder: `Reminder: invoice ${inv.number} is ${extra.daysOverdue} days overdue (${money(doc.amountDueMinor)})`,
+    reminder: `Reminder: invoice ${inv.number} is ${req.daysOverdue} days overdue (${money(doc.amountDueMinor)})`,
     receipt: `Payment received for invoice ${inv.number}, thank you`,
   }[kind]
   const intro = {
@@ -305,7 +432,7 @@ export async function queueInvoiceMail(tx: Tx, invoiceId: string, kind: MailKind
 <tr><td>Tax (${escapeHtml(formatTaxRate(doc.taxRateBasisPoints))})</td><td align="right">${escapeHtml(money(doc.taxMinor))}</td></tr>
 <tr><td><strong>Total</strong></td><td align="right"><strong>${escapeHtml(money(doc.totalMinor))}</strong></td></tr></table>
 <p><a href="${escapeHtml(link)}">${action}</a> · <a href="${escapeHtml(pdf)}">PDF</a></p><p>— ${escapeHtml(doc.company.name)}</p>`
-  return enqueueMail(tx, { companyId: inv.companyId, dedupeKey, to, subject, html, text })
+  return { companyId: inv.companyId, dedupeKey, to, subject, html, text }
 }
 
 /** Marks a due invoice sent and queues its e-mail; `dedupeKey` keeps a retried run from sending twice. */

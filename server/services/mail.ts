@@ -47,18 +47,33 @@ export function backoffSeconds(attempts: number) {
  * with the same `dedupeKey` is already queued (or sent).
  */
 export async function enqueueMail(tx: Tx | Database, m: OutgoingMail): Promise<string | null> {
-  const to = [...new Set(m.to.map(a => a.trim()).filter(Boolean))]
-  if (to.length === 0) return null
-  const [row] = await tx.insert(outbox).values({
-    companyId: m.companyId,
-    dedupeKey: m.dedupeKey,
-    to,
-    subject: m.subject,
-    html: m.html,
-    text: m.text,
-    attachments: m.attachments ?? [],
-  }).onConflictDoNothing({ target: outbox.dedupeKey }).returning({ id: outbox.id })
-  return row?.id ?? null
+  return (await enqueueMails(tx, [m]))[0] ?? null
+}
+
+/** Messages per insert statement (7 parameters each, well under PostgreSQL's 65,535). */
+const MAILS_PER_STATEMENT = 5000
+
+/**
+ * Queues many messages (a batch job) with one insert per few thousand: the same rules as
+ * `enqueueMail`, and the outbox id (or null) of each message in the order given.
+ */
+export async function enqueueMails(tx: Tx | Database, messages: readonly OutgoingMail[]): Promise<Array<string | null>> {
+  const rows = messages.map(m => ({ m, to: [...new Set(m.to.map(a => a.trim()).filter(Boolean))] }))
+  const idOf = new Map<string, string>()
+  const sendable = rows.filter(r => r.to.length)
+  for (let i = 0; i < sendable.length; i += MAILS_PER_STATEMENT) {
+    const made = await tx.insert(outbox).values(sendable.slice(i, i + MAILS_PER_STATEMENT).map(({ m, to }) => ({
+      companyId: m.companyId,
+      dedupeKey: m.dedupeKey,
+      to,
+      subject: m.subject,
+      html: m.html,
+      text: m.text,
+      attachments: m.attachments ?? [],
+    }))).onConflictDoNothing({ target: outbox.dedupeKey }).returning({ id: outbox.id, dedupeKey: outbox.dedupeKey })
+    for (const r of made) idOf.set(r.dedupeKey, r.id)
+  }
+  return rows.map(r => (r.to.length ? idOf.get(r.m.dedupeKey) ?? null : null))
 }
 
 interface ClaimedRow extends Record<string, unknown> {

@@ -1,4 +1,4 @@
-import { and, asc, eq } from 'drizzle-orm'
+import { and, asc, eq, inArray } from 'drizzle-orm'
 import { customerContacts, users } from '../db/schema'
 import type { Database, Tx } from '../utils/db'
 
@@ -6,9 +6,22 @@ const FLAG = { reports: customerContacts.getsReports, invoices: customerContacts
 
 /** The e-mail addresses of a customer's contacts who get `what`, first contact first, each once. */
 export async function contactEmails(db: Database | Tx, customerId: string, what: keyof typeof FLAG): Promise<string[]> {
-  const rows = await db.select({ email: customerContacts.email }).from(customerContacts)
-    .where(and(eq(customerContacts.customerId, customerId), eq(FLAG[what], true))).orderBy(asc(customerContacts.position))
-  return [...new Set(rows.flatMap(r => (r.email ? [r.email] : [])))]
+  return (await contactEmailsOf(db, [customerId], what)).get(customerId) ?? []
+}
+
+/** The same for many customers with one query (batch jobs): customer id → addresses; customers with none are absent. */
+export async function contactEmailsOf(db: Database | Tx, customerIds: readonly string[], what: keyof typeof FLAG): Promise<Map<string, string[]>> {
+  const out = new Map<string, string[]>()
+  if (!customerIds.length) return out
+  const rows = await db.select({ customerId: customerContacts.customerId, email: customerContacts.email }).from(customerContacts)
+    .where(and(inArray(customerContacts.customerId, [...new Set(customerIds)]), eq(FLAG[what], true))).orderBy(asc(customerContacts.customerId), asc(customerContacts.position))
+  for (const r of rows) {
+    if (!r.email) continue
+    const list = out.get(r.customerId) ?? []
+    if (!list.includes(r.email)) list.push(r.email)
+    out.set(r.customerId, list)
+  }
+  return out
 }
 
 /** The e-mail addresses of a company's active owners. */

@@ -3,7 +3,7 @@
 // the company's already-scheduled visits in the term, which stay where they are and count as
 // locked. What finds no place keeps its preferred day, unassigned, with the planner's reason.
 // A renewed contract's customer keeps the technician who did most of their last term's visits.
-import { and, asc, count, desc, eq, gte, inArray, isNotNull, lte, notInArray, sql } from 'drizzle-orm'
+import { and, asc, eq, gte, inArray, isNotNull, lte, notInArray, sql } from 'drizzle-orm'
 import { planSeason, type PlannerTechnician, type PlannerVisit } from '../../shared/utils/planner/index'
 import type { LocalDate } from '../../shared/utils/company-time'
 import { sites, staffProfiles, users, visits } from '../db/schema'
@@ -89,29 +89,38 @@ export async function placeNewVisits(
       siteId: v.siteId, customerId: v.customerId, ...at(v.siteId),
     })),
   ]
-  const plan = planSeason({ visits: planner, closedDays: closed, technicians, previousAssignments: opts.previousAssignments })
+  // Only the new visits are written: the days holding nothing but booked visits need no answer.
+  const plan = planSeason({ visits: planner, closedDays: closed, technicians, previousAssignments: opts.previousAssignments, onlyPlannedDays: true })
   for (const p of plan.placed) {
     if (p.visitId.startsWith('new:')) out.set(p.visitId.slice(4), { day: p.day, technicianId: p.technicianId, unplacedReason: null })
   }
+  const byId = new Map(toPlace.map(v => [`new:${v.key}`, v]))
   for (const u of plan.unplaced) {
     if (!u.visitId.startsWith('new:')) continue
-    const v = toPlace.find(x => `new:${x.key}` === u.visitId)!
+    const v = byId.get(u.visitId)!
     out.set(v.key, { day: v.preferred, technicianId: null, unplacedReason: u.reason })
   }
   return out
 }
 
+/** A customer and a span of days, named by `key`: whose visits were they mostly? */
+export interface TechnicianSpan { key: string, companyId: string, customerId: string, start: LocalDate, end: LocalDate }
+
 /**
- * The technician who did most of the customer's visits between two days (done visits first, then
- * any assigned visit not cancelled), or null: the renewal's "keep the customer's technician".
+ * For each span, the technician who did most of the customer's visits between its two days (done
+ * visits first, then any assigned visit not cancelled; ties to the lower id), with one query for
+ * all of them: the renewal's "keep the customer's technician". Spans with no such visit are absent.
  */
-export async function customerTechnician(tx: Tx, companyId: string, customerId: string, span: { start: LocalDate, end: LocalDate }): Promise<string | null> {
-  const done = sql<number>`count(*) filter (where ${visits.status} = 'done')`
-  const [top] = await tx.select({ technicianId: visits.technicianId, done, all: count() }).from(visits)
-    .where(and(
-      eq(visits.companyId, companyId), eq(visits.customerId, customerId), isNotNull(visits.technicianId),
-      inArray(visits.status, ['done', 'in_progress', 'scheduled']), gte(visits.scheduledOn, span.start), lte(visits.scheduledOn, span.end),
-    ))
-    .groupBy(visits.technicianId).orderBy(desc(done), desc(count()), asc(visits.technicianId)).limit(1)
-  return top?.technicianId ?? null
+export async function customerTechnicians(tx: Tx, spans: readonly TechnicianSpan[]): Promise<Map<string, string>> {
+  const out = new Map<string, string>()
+  if (!spans.length) return out
+  const { rows } = await tx.execute<{ key: string, technician_id: string }>(sql`
+    select distinct on (s.key) s.key, v.technician_id
+    from jsonb_to_recordset(${JSON.stringify(spans)}::jsonb) as s(key text, "companyId" uuid, "customerId" uuid, start date, "end" date)
+    join visits v on v.customer_id = s."customerId" and v.company_id = s."companyId" and v.scheduled_on between s.start and s."end"
+      and v.technician_id is not null and v.status in ('done', 'in_progress', 'scheduled')
+    group by s.key, v.technician_id
+    order by s.key, count(*) filter (where v.status = 'done') desc, count(*) desc, v.technician_id asc`)
+  for (const r of rows) out.set(r.key, r.technician_id)
+  return out
 }

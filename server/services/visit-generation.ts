@@ -1,14 +1,17 @@
 import { and, asc, eq, gte, inArray, sql } from 'drizzle-orm'
-import { localTimeToInstant, nearestWorkingDay, reconcileVisits, type PlannedVisit, type WorkCalendar } from '../../shared/utils/recurrence'
+import { localTimeToInstant, nearestWorkingDay, reconcileVisits, type PlannedVisit, type Reconciliation, type WorkCalendar } from '../../shared/utils/recurrence'
 import { localToday, type LocalDate } from '../../shared/utils/company-time'
+import { groupRows } from '../../shared/utils/collections'
 import { expandVisitSchedule } from '../../shared/utils/visit-windows'
 import { templateVisitSchedule } from '../../shared/schemas/visit-schedule'
 import { closedDays, companies, contractFeatures, contracts, planVisitTemplates, visits, waterFeatures } from '../db/schema'
 import type { Tx } from '../utils/db'
-import { customerTechnician, placeNewVisits, type VisitPlacement, type VisitToPlace } from './season-planning'
+import { customerTechnicians, placeNewVisits, type TechnicianSpan, type VisitPlacement, type VisitToPlace } from './season-planning'
 import { shapeDepthM, withSafety } from './visit-safety'
 
 type TemplateRow = typeof planVisitTemplates.$inferSelect
+type ContractRow = typeof contracts.$inferSelect
+type CompanyRow = typeof companies.$inferSelect
 
 /**
  * One visit per window of each template in the term, on the working, open day nearest the
@@ -36,6 +39,10 @@ export function windowVisitDates(templates: readonly TemplateRow[], term: { star
 /** The clock generation uses; tests and the demo seed pass their own. */
 export interface GenerationClock { now?: Date }
 
+export interface GenerationResult { inserted: number, rescheduled: number, cancelled: number, unplaced: Array<{ visitId: string, day: LocalDate, reason: string }> }
+
+const NOTHING: GenerationResult = { inserted: 0, rescheduled: 0, cancelled: 0, unplaced: [] }
+
 /**
  * Brings a contract's generated visits in line with its plan's templates and term: creates the
  * missing future visits, moves or cancels future unstarted ones, and leaves done, under-way,
@@ -43,166 +50,241 @@ export interface GenerationClock { now?: Date }
  * contract row, so two regenerations cannot interleave.
  */
 export async function regenerateContractVisits(tx: Tx, contractId: string, clock: GenerationClock = {}): Promise<GenerationResult> {
-  const g = await prepareGeneration(tx, contractId, clock)
-  if (!g) return { inserted: 0, rescheduled: 0, cancelled: 0, unplaced: [] }
-  const placement = g.toPlace.length
-    ? await placeNewVisits(tx, g.company, g.term, g.closed, g.toPlace, { replacingVisitIds: g.replacingVisitIds, ...(g.keeper && { previousAssignments: { [g.customerId]: g.keeper } }) })
-    : new Map<string, VisitPlacement>()
-  return g.finish(placement)
+  return (await regenerateManyContractVisits(tx, [contractId], clock)).get(contractId) ?? { ...NOTHING, unplaced: [] }
+}
+
+/** One contract's regeneration worked out in memory, up to the planner. */
+interface Prepared {
+  contract: ContractRow
+  company: CompanyRow
+  closed: LocalDate[]
+  templateOf: ReadonlyMap<string, TemplateRow>
+  deepestAt: ReadonlyMap<string, number>
+  plannedByKey: ReadonlyMap<string, WindowedVisit & { siteId: string }>
+  existingById: ReadonlyMap<string, { id: string, generationKey: string | null, movedManually: boolean }>
+  r: Reconciliation
+  toPlace: VisitToPlace[]
+  replacingVisitIds: string[]
 }
 
 /**
- * The same for many contracts (a batch of renewals): each contract's visits are worked out as
- * above, but the planner runs once per company for all of them together, so the new visits of
- * the batch share the technicians' capacity as one plan (never a technician-day over capacity,
- * a reason for each visit left unplaced) instead of one planner run per contract.
+ * The same for many contracts at once (a batch of renewals, a plan or calendar change), set-based:
+ * the contracts (locked), their companies, plans' templates, closed days, features and existing
+ * visits are read with one query each for the whole batch, the windows are worked out once per
+ * plan and term, the customers' technicians with one query, the planner runs once per company for
+ * all the new visits together (so they share the technicians' capacity as one plan: never a
+ * technician-day over capacity, a reason for each visit left unplaced), and the result is written
+ * with one insert of every new visit, one update of every moved one and one of the cancelled ones.
  */
 export async function regenerateManyContractVisits(tx: Tx, contractIds: readonly string[], clock: GenerationClock = {}): Promise<Map<string, GenerationResult>> {
-  const prepared: Prepared[] = []
-  for (const id of contractIds) {
-    const g = await prepareGeneration(tx, id, clock)
-    if (g) prepared.push(g)
-  }
   const out = new Map<string, GenerationResult>()
-  const byCompany = new Map<string, Prepared[]>()
-  for (const g of prepared) byCompany.set(g.company.id, [...(byCompany.get(g.company.id) ?? []), g])
-  for (const group of byCompany.values()) {
-    const toPlace = group.flatMap(g => g.toPlace.map(v => ({ ...v, key: `${g.contractId}|${v.key}` })))
+  const ids = [...new Set(contractIds)]
+  if (!ids.length) return out
+  // Locked in id order, so two batches sharing contracts lock them in the same order; worked
+  // through in the order given (the planner breaks ties by the order of its visits).
+  const position = new Map(ids.map((id, i) => [id, i]))
+  const contractRows = (await tx.select().from(contracts).where(inArray(contracts.id, ids)).orderBy(asc(contracts.id)).for('update'))
+    .sort((a, b) => position.get(a.id)! - position.get(b.id)!)
+  if (!contractRows.length) return out
+  const companyIds = [...new Set(contractRows.map(c => c.companyId))]
+  const planIds = [...new Set(contractRows.map(c => c.planId))]
+  const firstStart = contractRows.map(c => c.termStart).sort()[0]!
+  // One connection inside a transaction: the reads run one after another.
+  const companyRows = await tx.select().from(companies).where(inArray(companies.id, companyIds))
+  const templateRows = await tx.select().from(planVisitTemplates).where(inArray(planVisitTemplates.planId, planIds)).orderBy(asc(planVisitTemplates.planId), asc(planVisitTemplates.position))
+  const closedRows = await tx.select({ companyId: closedDays.companyId, day: closedDays.day }).from(closedDays).where(and(inArray(closedDays.companyId, companyIds), gte(closedDays.day, firstStart)))
+  const shapeRows = await tx.select({ contractId: contractFeatures.contractId, siteId: waterFeatures.siteId, shape: waterFeatures.shape }).from(contractFeatures)
+    .innerJoin(waterFeatures, eq(waterFeatures.id, contractFeatures.featureId))
+    .where(inArray(contractFeatures.contractId, contractRows.map(c => c.id)))
+  const existingRows = await tx.select({
+    id: visits.id, contractId: visits.contractId, generationKey: visits.generationKey, status: visits.status, movedManually: visits.movedManually,
+    scheduledOn: visits.scheduledOn, statusReason: visits.statusReason,
+  }).from(visits).where(inArray(visits.contractId, contractRows.map(c => c.id)))
+
+  const companyOf = new Map(companyRows.map(c => [c.id, c]))
+  const templatesOf = groupRows(templateRows, t => t.planId)
+  const closedOf = groupRows(closedRows, c => c.companyId)
+  const shapesOf = groupRows(shapeRows, s => s.contractId)
+  const existingOf = groupRows(existingRows, e => e.contractId!)
+  // Contracts on the same plan and term (most of a renewal batch) share their windows.
+  const windowsOf = new Map<string, WindowedVisit[]>()
+
+  const prepared: Prepared[] = []
+  for (const contract of contractRows) {
+    const company = companyOf.get(contract.companyId)!
+    const closed = (closedOf.get(contract.companyId) ?? []).filter(c => c.day >= contract.termStart).map(c => c.day)
+    const closedSet = new Set(closed)
+    const templates = templatesOf.get(contract.planId) ?? []
+    const windowKey = `${contract.companyId}|${contract.planId}|${contract.termStart}|${contract.termEnd}`
+    let dates = windowsOf.get(windowKey)
+    if (!dates) {
+      dates = windowVisitDates(templates, { start: contract.termStart, end: contract.termEnd }, { workingDays: company.workingDays, closed: closedSet })
+      windowsOf.set(windowKey, dates)
+    }
+    // The deepest water at each site decides its safety items.
+    const deepestAt = new Map<string, number>()
+    for (const f of shapesOf.get(contract.id) ?? []) deepestAt.set(f.siteId, Math.max(deepestAt.get(f.siteId) ?? 0, shapeDepthM(f.shape)))
+    const existing = existingOf.get(contract.id) ?? []
+    const today = localToday(company.timeZone, clock.now)
+    // A contract's features may sit on more than one site of the customer: one visit per site.
+    const planned: Array<WindowedVisit & { siteId: string }> = [...deepestAt.keys()].flatMap(siteId => dates.map(d => ({ ...d, key: `${d.key}:${siteId}`, siteId })))
+    // A visit the planner placed elsewhere in its window stays there while that day is still open.
+    const existingByKey = new Map(existing.filter(e => e.generationKey).map(e => [e.generationKey!, e]))
+    for (const p of planned) {
+      const e = existingByKey.get(p.key)
+      if (!e || e.status !== 'scheduled' || e.scheduledOn < p.earliest || e.scheduledOn > p.latest || closedSet.has(e.scheduledOn)) continue
+      const weekday = new Date(`${e.scheduledOn}T12:00:00Z`).getUTCDay() || 7
+      if (company.workingDays.includes(weekday)) p.date = e.scheduledOn
+    }
+    const r = reconcileVisits(existing, planned, today)
+    const templateOf = new Map(templates.map(t => [t.id, t]))
+    // New visits, and moved ones a person did not place, go to the planner (as on activation): a day
+    // in their window and a technician with room.
+    const plannedByKey = new Map(planned.map(p => [p.key, p]))
+    const existingById = new Map(existing.map(e => [e.id, e]))
+    const replanned = r.reschedule.filter(m => !existingById.get(m.id)!.movedManually && plannedByKey.has(existingById.get(m.id)!.generationKey ?? ''))
+    const toPlace: VisitToPlace[] = [
+      ...r.insert.map(p => ({ key: p.key, date: p.date })),
+      ...replanned.map(m => ({ key: existingById.get(m.id)!.generationKey!, date: m.date })),
+    ].map(({ key, date }) => {
+      const w = plannedByKey.get(key)!
+      return { key, earliest: w.earliest, latest: w.latest, preferred: date, durationMinutes: templateOf.get(w.templateId)!.durationMinutes, siteId: w.siteId, customerId: contract.customerId }
+    })
+    prepared.push({ contract, company, closed, templateOf, deepestAt, plannedByKey, existingById, r, toPlace, replacingVisitIds: replanned.map(m => m.id) })
+  }
+
+  // The customer keeps their technician where possible: who has most of this term's visits, else
+  // who did most of the previous term's (one query for the whole batch).
+  const placing = prepared.filter(g => g.toPlace.length)
+  const previousTerms = await previousTermsOf(tx, placing.map(g => g.contract))
+  const spans: TechnicianSpan[] = placing.flatMap(({ contract: c }) => {
+    const prev = c.previousContractId ? previousTerms.get(c.previousContractId) : undefined
+    return [
+      { key: `${c.id}|this`, companyId: c.companyId, customerId: c.customerId, start: c.termStart, end: c.termEnd },
+      ...(prev ? [{ key: `${c.id}|previous`, companyId: c.companyId, customerId: c.customerId, start: prev.start, end: prev.end }] : []),
+    ]
+  })
+  const technicianOf = await customerTechnicians(tx, spans)
+
+  const placementOf = new Map<string, Map<string, VisitPlacement>>()
+  for (const group of groupRows(placing, g => g.company.id).values()) {
+    const toPlace = group.flatMap(g => g.toPlace.map(v => ({ ...v, key: `${g.contract.id}|${v.key}` })))
     const previousAssignments: Record<string, string> = {}
-    for (const g of group) if (g.keeper && !(g.customerId in previousAssignments)) previousAssignments[g.customerId] = g.keeper
-    const term = { start: group.map(g => g.term.start).sort()[0]!, end: group.map(g => g.term.end).sort().at(-1)! }
-    const placed = toPlace.length
-      ? await placeNewVisits(tx, group[0]!.company, term, [...new Set(group.flatMap(g => g.closed))].sort(), toPlace, { replacingVisitIds: group.flatMap(g => g.replacingVisitIds), previousAssignments })
-      : new Map<string, VisitPlacement>()
-    for (const g of group) {
-      const mine = new Map<string, VisitPlacement>()
-      const prefix = `${g.contractId}|`
-      for (const [key, p] of placed) if (key.startsWith(prefix)) mine.set(key.slice(prefix.length), p)
-      out.set(g.contractId, await g.finish(mine))
+    for (const { contract: c } of group) {
+      const keeper = technicianOf.get(`${c.id}|this`) ?? technicianOf.get(`${c.id}|previous`)
+      if (keeper && !(c.customerId in previousAssignments)) previousAssignments[c.customerId] = keeper
+    }
+    const term = { start: group.map(g => g.contract.termStart).sort()[0]!, end: group.map(g => g.contract.termEnd).sort().at(-1)! }
+    const closed = [...new Set(group.flatMap(g => g.closed))].sort()
+    const placed = await placeNewVisits(tx, group[0]!.company, term, closed, toPlace, { replacingVisitIds: group.flatMap(g => g.replacingVisitIds), previousAssignments })
+    for (const [key, p] of placed) {
+      const cut = key.indexOf('|')
+      const contractId = key.slice(0, cut)
+      let mine = placementOf.get(contractId)
+      if (!mine) placementOf.set(contractId, (mine = new Map()))
+      mine.set(key.slice(cut + 1), p)
     }
   }
+
+  await writeGeneration(tx, prepared, placementOf, out)
   return out
 }
 
-export interface GenerationResult { inserted: number, rescheduled: number, cancelled: number, unplaced: Array<{ visitId: string, day: LocalDate, reason: string }> }
-
-interface Prepared {
-  contractId: string
-  customerId: string
-  company: typeof companies.$inferSelect
-  term: { start: LocalDate, end: LocalDate }
-  closed: LocalDate[]
-  toPlace: VisitToPlace[]
-  replacingVisitIds: string[]
-  keeper: string | null
-  /** Writes the visits once the planner has placed `toPlace`. */
-  finish: (placement: Map<string, VisitPlacement>) => Promise<GenerationResult>
-}
-
-/** Everything of one contract's regeneration up to the planner: what to insert, move, cancel, and what to place. */
-async function prepareGeneration(tx: Tx, contractId: string, clock: GenerationClock): Promise<Prepared | null> {
-  const [contract] = await tx.select().from(contracts).where(eq(contracts.id, contractId)).for('update').limit(1)
-  if (!contract) return null
-  const [company] = await tx.select().from(companies).where(eq(companies.id, contract.companyId)).limit(1)
-  // One connection inside a transaction: run the reads one after another.
-  const templates = await tx.select().from(planVisitTemplates).where(eq(planVisitTemplates.planId, contract.planId)).orderBy(asc(planVisitTemplates.position))
-  const closed = await tx.select({ day: closedDays.day }).from(closedDays).where(and(eq(closedDays.companyId, contract.companyId), gte(closedDays.day, contract.termStart)))
-  const contractShapes = await tx.select({ siteId: waterFeatures.siteId, shape: waterFeatures.shape }).from(contractFeatures)
-    .innerJoin(waterFeatures, eq(waterFeatures.id, contractFeatures.featureId))
-    .where(eq(contractFeatures.contractId, contractId))
-  // The deepest water at each site decides its safety items.
-  const deepestAt = new Map<string, number>()
-  for (const f of contractShapes) deepestAt.set(f.siteId, Math.max(deepestAt.get(f.siteId) ?? 0, shapeDepthM(f.shape)))
-  const featureSites = [...deepestAt.keys()].map(siteId => ({ siteId }))
-  const existing = await tx.select({
-    id: visits.id, generationKey: visits.generationKey, status: visits.status, movedManually: visits.movedManually,
-    scheduledOn: visits.scheduledOn, statusReason: visits.statusReason,
-  }).from(visits).where(eq(visits.contractId, contractId))
-  const tz = company!.timeZone
-  const today = localToday(tz, clock.now)
-  const dates = windowVisitDates(templates, { start: contract.termStart, end: contract.termEnd }, { workingDays: company!.workingDays, closed: new Set(closed.map(c => c.day)) })
-  // A contract's features may sit on more than one site of the customer: one visit per site.
-  const planned: Array<WindowedVisit & { siteId: string }> = featureSites.flatMap(({ siteId }) => dates.map(d => ({ ...d, key: `${d.key}:${siteId}`, siteId })))
-  // A visit the planner placed elsewhere in its window stays there while that day is still open.
-  const closedSet = new Set(closed.map(c => c.day))
-  const existingByKey = new Map(existing.filter(e => e.generationKey).map(e => [e.generationKey!, e]))
-  for (const p of planned) {
-    const e = existingByKey.get(p.key)
-    if (!e || e.status !== 'scheduled' || e.scheduledOn < p.earliest || e.scheduledOn > p.latest || closedSet.has(e.scheduledOn)) continue
-    const weekday = new Date(`${e.scheduledOn}T12:00:00Z`).getUTCDay() || 7
-    if (company!.workingDays.includes(weekday)) p.date = e.scheduledOn
-  }
-  const r = reconcileVisits(existing, planned, today)
-  const template = new Map(templates.map(t => [t.id, t]))
-  const startOf = (date: string) => localTimeToInstant(date, company!.dayStartTime, tz)
-
-  // New visits, and moved ones a person did not place, go to the planner (as on activation): a day
-  // in their window and a technician with room. The customer keeps their technician where possible:
-  // who has most of this term's visits, else who did most of the previous term's.
-  const plannedByKey = new Map(planned.map(p => [p.key, p]))
-  const existingById = new Map(existing.map(e => [e.id, e]))
-  const replanned = r.reschedule.filter(m => !existingById.get(m.id)!.movedManually && plannedByKey.has(existingById.get(m.id)!.generationKey ?? ''))
-  const toPlace: VisitToPlace[] = [
-    ...r.insert.map(p => ({ key: p.key, date: p.date })),
-    ...replanned.map(m => ({ key: existingById.get(m.id)!.generationKey!, date: m.date })),
-  ].map(({ key, date }) => {
-    const w = plannedByKey.get(key)!
-    return { key, earliest: w.earliest, latest: w.latest, preferred: date, durationMinutes: template.get(w.templateId)!.durationMinutes, siteId: w.siteId, customerId: contract.customerId }
-  })
-  const keeper = toPlace.length
-    ? await customerTechnician(tx, contract.companyId, contract.customerId, { start: contract.termStart, end: contract.termEnd })
-      ?? (contract.previousContractId ? await previousTermTechnician(tx, contract) : null)
-    : null
-  const finish = async (placement: Map<string, VisitPlacement>): Promise<GenerationResult> => {
+/** The visit rows of a batch as one statement each: every insert, every move, every cancellation. */
+async function writeGeneration(tx: Tx, prepared: readonly Prepared[], placementOf: ReadonlyMap<string, ReadonlyMap<string, VisitPlacement>>, out: Map<string, GenerationResult>) {
+  const inserts: Array<Record<string, unknown>> = []
+  const moves: Array<Record<string, unknown>> = []
+  const cancels: string[] = []
   /** Visits the planner could not place: they wait unassigned on their preferred day, with the reason. */
-  const unplaced: Array<{ visitId: string, day: LocalDate, reason: string }> = []
-  if (r.insert.length) {
-    const inserted = await tx.insert(visits).values(r.insert.map((p) => {
-      const t = template.get(p.templateId)!
-      const siteId = plannedByKey.get(p.key)!.siteId
+  const movedUnplaced = new Map<string, GenerationResult['unplaced']>()
+  const startsAt = new Map<string, string>()
+  const startOf = (company: CompanyRow, day: LocalDate) => {
+    const key = `${company.timeZone}|${company.dayStartTime}|${day}`
+    let at = startsAt.get(key)
+    if (!at) startsAt.set(key, (at = localTimeToInstant(day, company.dayStartTime, company.timeZone).toISOString()))
+    return at
+  }
+  for (const g of prepared) {
+    const { contract, company, r } = g
+    const placement = placementOf.get(contract.id) ?? new Map<string, VisitPlacement>()
+    for (const p of r.insert) {
+      const t = g.templateOf.get(p.templateId)!
+      const siteId = g.plannedByKey.get(p.key)!.siteId
       const placed = placement.get(p.key) ?? { day: p.date, technicianId: null, unplacedReason: null }
-      return {
-        companyId: contract.companyId, contractId, templateId: t.id, customerId: contract.customerId, siteId,
-        visitType: t.visitType, scheduledOn: placed.day, startsAt: startOf(placed.day), durationMinutes: t.durationMinutes,
-        technicianId: placed.technicianId, unplacedReason: placed.unplacedReason,
-        generationKey: p.key,
-        checklist: withSafety(t.checklist.map(c => c.label), { visitType: t.visitType, date: placed.day, deepestM: deepestAt.get(siteId) ?? null, latitude: company!.baseLatitude }),
-      }
-    })).onConflictDoNothing().returning({ id: visits.id, day: visits.scheduledOn, reason: visits.unplacedReason })
-    for (const row of inserted) if (row.reason) unplaced.push({ visitId: row.id, day: row.day, reason: row.reason })
+      inserts.push({
+        company_id: contract.companyId, contract_id: contract.id, template_id: t.id, customer_id: contract.customerId, site_id: siteId,
+        visit_type: t.visitType, scheduled_on: placed.day, starts_at: startOf(company, placed.day), duration_minutes: t.durationMinutes,
+        technician_id: placed.technicianId, unplaced_reason: placed.unplacedReason, generation_key: p.key,
+        checklist: withSafety(t.checklist.map(c => c.label), { visitType: t.visitType, date: placed.day, deepestM: g.deepestAt.get(siteId) ?? null, latitude: company.baseLatitude }),
+      })
+    }
+    const unplaced: GenerationResult['unplaced'] = []
+    for (const m of r.reschedule) {
+      const e = g.existingById.get(m.id)!
+      const p = g.plannedByKey.get(e.generationKey!)
+      const t = p ? g.templateOf.get(p.templateId)! : null
+      // A visit a person moved keeps its day and technician; the rest take the planner's place.
+      const placed = e.movedManually ? undefined : placement.get(e.generationKey!)
+      const day = placed?.day ?? m.date
+      moves.push({
+        id: m.id, day, starts_at: startOf(company, day), placed: Boolean(placed), technician_id: placed?.technicianId ?? null, unplaced_reason: placed?.unplacedReason ?? null,
+        duration_minutes: t?.durationMinutes ?? null, visit_type: t?.visitType ?? null, revive: m.revive,
+      })
+      if (placed?.unplacedReason) unplaced.push({ visitId: m.id, day, reason: placed.unplacedReason })
+    }
+    movedUnplaced.set(contract.id, unplaced)
+    cancels.push(...r.cancel)
   }
-  for (const m of r.reschedule) {
-    const key = existingById.get(m.id)!.generationKey!
-    const p = plannedByKey.get(key)
-    const t = p ? template.get(p.templateId)! : null
-    // A visit a person moved keeps its day and technician; the rest take the planner's place.
-    const placed = existingById.get(m.id)!.movedManually ? undefined : placement.get(key)
-    const day = placed?.day ?? m.date
-    await tx.update(visits).set({
-      scheduledOn: day, startsAt: startOf(day),
-      ...(placed && { technicianId: placed.technicianId, unplacedReason: placed.unplacedReason }),
-      ...(t && { durationMinutes: t.durationMinutes, visitType: t.visitType }),
-      ...(m.revive && { status: 'scheduled' as const, statusReason: '' }),
-      sequence: sql`${visits.sequence} + 1`,
-    }).where(eq(visits.id, m.id))
-    if (placed?.unplacedReason) unplaced.push({ visitId: m.id, day, reason: placed.unplacedReason })
+
+  const insertedOf = new Map<string, Map<string, { id: string, day: LocalDate, reason: string | null }>>()
+  if (inserts.length) {
+    const { rows } = await tx.execute<{ id: string, contract_id: string, generation_key: string, scheduled_on: string, unplaced_reason: string | null }>(sql`
+      insert into visits (company_id, contract_id, template_id, customer_id, site_id, visit_type, scheduled_on, starts_at, duration_minutes, technician_id, unplaced_reason, generation_key, checklist)
+      select v.company_id, v.contract_id, v.template_id, v.customer_id, v.site_id, v.visit_type::visit_type, v.scheduled_on, v.starts_at, v.duration_minutes, v.technician_id, v.unplaced_reason, v.generation_key, v.checklist
+      from jsonb_to_recordset(${JSON.stringify(inserts)}::jsonb) as v(company_id uuid, contract_id uuid, template_id uuid, customer_id uuid, site_id uuid, visit_type text, scheduled_on date,
+        starts_at timestamptz, duration_minutes integer, technician_id uuid, unplaced_reason text, generation_key text, checklist jsonb)
+      on conflict do nothing
+      returning id, contract_id, generation_key, scheduled_on::text as scheduled_on, unplaced_reason`)
+    for (const row of rows) {
+      let mine = insertedOf.get(row.contract_id)
+      if (!mine) insertedOf.set(row.contract_id, (mine = new Map()))
+      mine.set(row.generation_key, { id: row.id, day: row.scheduled_on, reason: row.unplaced_reason })
+    }
   }
-  if (r.cancel.length) {
+  if (moves.length) {
+    await tx.execute(sql`
+      update visits as v set
+        scheduled_on = m.day, starts_at = m.starts_at,
+        technician_id = case when m.placed then m.technician_id else v.technician_id end,
+        unplaced_reason = case when m.placed then m.unplaced_reason else v.unplaced_reason end,
+        duration_minutes = coalesce(m.duration_minutes, v.duration_minutes), visit_type = coalesce(m.visit_type::visit_type, v.visit_type),
+        status = case when m.revive then 'scheduled'::visit_status else v.status end, status_reason = case when m.revive then '' else v.status_reason end,
+        sequence = v.sequence + 1, updated_at = now()
+      from jsonb_to_recordset(${JSON.stringify(moves)}::jsonb) as m(id uuid, day date, starts_at timestamptz, placed boolean, technician_id uuid, unplaced_reason text, duration_minutes integer, visit_type text, revive boolean)
+      where v.id = m.id`)
+  }
+  if (cancels.length) {
     await tx.update(visits).set({ status: 'cancelled', statusReason: 'No longer in the plan', sequence: sql`${visits.sequence} + 1` })
-      .where(inArray(visits.id, r.cancel))
+      .where(inArray(visits.id, cancels))
   }
-  return { inserted: r.insert.length, rescheduled: r.reschedule.length, cancelled: r.cancel.length, unplaced }
-  }
-  return {
-    contractId, customerId: contract.customerId, company: company!, term: { start: contract.termStart, end: contract.termEnd }, closed: closed.map(c => c.day),
-    toPlace, replacingVisitIds: replanned.map(m => m.id), keeper, finish,
+  for (const g of prepared) {
+    const inserted = insertedOf.get(g.contract.id)
+    const unplaced: GenerationResult['unplaced'] = []
+    for (const p of g.r.insert) {
+      const row = inserted?.get(p.key)
+      if (row?.reason) unplaced.push({ visitId: row.id, day: row.day, reason: row.reason })
+    }
+    unplaced.push(...movedUnplaced.get(g.contract.id)!)
+    out.set(g.contract.id, { inserted: g.r.insert.length, rescheduled: g.r.reschedule.length, cancelled: g.r.cancel.length, unplaced })
   }
 }
 
-/** Who did most of the customer's visits in the term this contract renews. */
-async function previousTermTechnician(tx: Tx, contract: typeof contracts.$inferSelect) {
-  const [prev] = await tx.select({ start: contracts.termStart, end: contracts.termEnd }).from(contracts).where(eq(contracts.id, contract.previousContractId!)).limit(1)
-  return prev ? customerTechnician(tx, contract.companyId, contract.customerId, prev) : null
+/** The terms the contracts renew (start and end of each previous contract). */
+async function previousTermsOf(tx: Tx, rows: readonly ContractRow[]) {
+  const ids = [...new Set(rows.flatMap(c => (c.previousContractId ? [c.previousContractId] : [])))]
+  if (!ids.length) return new Map<string, { start: LocalDate, end: LocalDate }>()
+  const prev = await tx.select({ id: contracts.id, start: contracts.termStart, end: contracts.termEnd }).from(contracts).where(inArray(contracts.id, ids))
+  return new Map(prev.map(p => [p.id, { start: p.start, end: p.end }]))
 }
 
 /** Cancels a contract's future, unstarted visits (pause, end, cancel), with the reason shown to people. */

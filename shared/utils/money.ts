@@ -1,26 +1,25 @@
 // Money is an integer count of minor units with an ISO 4217 currency. No floating point here.
 
+const minorDigits = new Map<string, number>()
+const moneyFormats = new Map<string, Intl.NumberFormat>()
+
 /** Digits after the decimal point for a currency (2 for USD, 0 for JPY, 3 for BHD). */
 export function currencyMinorDigits(currency: string): number {
-  return currencyFormat('en', currency).resolvedOptions().maximumFractionDigits ?? 2
-}
-
-/** Making an Intl.NumberFormat costs far more than using one: one per locale and currency, kept. */
-const moneyFormats = new Map<string, Intl.NumberFormat>()
-function currencyFormat(locale: string, currency: string): Intl.NumberFormat {
-  const key = `${locale}|${currency}`
-  let f = moneyFormats.get(key)
-  if (!f) {
-    const digits = new Intl.NumberFormat('en', { style: 'currency', currency }).resolvedOptions().maximumFractionDigits ?? 2
-    moneyFormats.set(key, (f = new Intl.NumberFormat(locale, { style: 'currency', currency, minimumFractionDigits: digits, maximumFractionDigits: digits })))
+  let digits = minorDigits.get(currency)
+  if (digits === undefined) {
+    digits = new Intl.NumberFormat('en', { style: 'currency', currency }).resolvedOptions().maximumFractionDigits ?? 2
+    minorDigits.set(currency, digits)
   }
-  return f
+  return digits
 }
 
-/** 145000 USD → "$1,450.00". */
+/** 145000 USD → "$1,450.00". (Formatters are made once per locale and currency: batch e-mails format thousands.) */
 export function formatMoney(minor: number, currency: string, locale = 'en-US'): string {
   const digits = currencyMinorDigits(currency)
-  return currencyFormat(locale, currency).format(minor / 10 ** digits)
+  const key = `${locale}|${currency}`
+  let format = moneyFormats.get(key)
+  if (!format) moneyFormats.set(key, (format = new Intl.NumberFormat(locale, { style: 'currency', currency, minimumFractionDigits: digits, maximumFractionDigits: digits })))
+  return format.format(minor / 10 ** digits)
 }
 
 /** "1,450.00" (or "1450", "1450.5") → 145000 minor units; NaN when it is not an amount. */

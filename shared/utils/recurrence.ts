@@ -52,7 +52,14 @@ function fromUtc(d: Date): LocalDate {
   return d.toISOString().slice(0, 10)
 }
 export function isLocalDate(d: string): boolean {
-  return /^\d{4}-\d{2}-\d{2}$/.test(d) && DateTime.fromISO(d, { zone: 'utc' }).isValid
+  // Plain arithmetic, not a date library: the planner checks every visit's dates with this.
+  if (!/^\d{4}-\d{2}-\d{2}$/.test(d)) return false
+  const year = Number(d.slice(0, 4))
+  const month = Number(d.slice(5, 7))
+  const day = Number(d.slice(8, 10))
+  if (month < 1 || month > 12 || day < 1) return false
+  const leap = year % 4 === 0 && (year % 100 !== 0 || year % 400 === 0)
+  return day <= (month === 2 ? (leap ? 29 : 28) : [4, 6, 9, 11].includes(month) ? 30 : 31)
 }
 
 /**

@@ -117,8 +117,9 @@ describe('the billing job (billing:renew)', () => {
 
   it('killed half-way and run again, it bills everything once and skips nothing', async () => {
     const book = await buildBook('crash')
-    // Units: renewal (1), ending terms (2), then each invoice; die after the second invoice.
-    const killed = await runBillingTask({ companyId: book.companyId, crashAfter: 4 })
+    // Units: the renewal batch (1), ending terms (2), then each batch of invoices, here two to a
+    // batch; die after the first batch (the first two invoices) is committed.
+    const killed = await runBillingTask({ companyId: book.companyId, crashAfter: 3, invoiceBatch: 2 })
     expect(killed.signal).toBe('SIGKILL')
     expect((await raised(book)).length).toBe(2)
     const [stale] = await testDb().select().from(schema.taskRuns).where(and(eq(schema.taskRuns.companyId, book.companyId), eq(schema.taskRuns.status, 'running')))

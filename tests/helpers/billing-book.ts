@@ -103,9 +103,10 @@ export async function buildBook(label: string): Promise<Book> {
 }
 
 /** Runs `npm run task:billing` for one company as a separate process (as an operator would). */
-export function runBillingTask(args: { companyId: string, today?: string, crashAfter?: number }) {
+export function runBillingTask(args: { companyId: string, today?: string, crashAfter?: number, invoiceBatch?: number }) {
   const argv = ['scripts/task-billing.ts', '--company', args.companyId, '--today', args.today ?? BOOK_TODAY]
   if (args.crashAfter) argv.push('--crash-after', String(args.crashAfter))
+  if (args.invoiceBatch) argv.push('--invoice-batch', String(args.invoiceBatch))
   return new Promise<{ code: number | null, signal: NodeJS.Signals | null, result: any }>((done, fail) => {
     const child = spawn(resolve(root, 'node_modules/.bin/tsx'), argv, {
       cwd: root,

@@ -277,3 +277,24 @@ describe('planner: bad input names the field', () => {
     expect(() => planSeason(input as PlannerInput)).toThrow(expect.objectContaining({ name: 'PlannerInputError', field }))
   })
 })
+
+describe('planner: onlyPlannedDays (a batch of new visits next to a booked season)', () => {
+  // Tess's week is booked on Monday to Wednesday; five new visits fit only on Thursday and Friday.
+  const booked = ['2027-04-05', '2027-04-06', '2027-04-07'].flatMap((day, d) =>
+    Array.from({ length: 3 }, (_, k) => visit(`b${d * 3 + k}`, { windowEarliest: day, windowLatest: day, durationMinutes: 120, locked: { day, technicianId: 'tess' } })))
+  const fresh = Array.from({ length: 5 }, (_, i) => visit(`n${i}`, { windowEarliest: '2027-04-08', windowLatest: FRI }))
+  const input: PlannerInput = { visits: [...booked, ...fresh], technicians: [tech('tess')] }
+
+  it('places the new visits exactly as the full answer does, and answers only for the days it placed on', () => {
+    const full = planSeason(input)
+    const only = planSeason({ ...input, onlyPlannedDays: true })
+    const placedNew = (plan: SeasonPlan) => plan.placed.filter(p => p.visitId.startsWith('n')).map(p => `${p.visitId} ${p.day} ${p.technicianId}`).sort()
+    expect(placedNew(only)).toEqual(placedNew(full))
+    expect(placedNew(only)).toHaveLength(5)
+    expect(only.unplaced).toEqual(full.unplaced)
+    // The booked-only days (Monday to Wednesday) are left out; the full answer has them.
+    expect(full.days.map(d => d.day)).toEqual(expect.arrayContaining(['2027-04-05', '2027-04-06', '2027-04-07']))
+    expect(only.days.every(d => d.day >= '2027-04-08')).toBe(true)
+    expect(only.placed.some(p => p.visitId.startsWith('b'))).toBe(false)
+  })
+})

@@ -1,8 +1,9 @@
 import { describe, expect, it } from 'vitest'
 import {
-  describeVisitRule, expandVisitRule, localTimeToInstant, nearestWorkingDay, normalizeVisitRule, planVisitDates,
+  describeVisitRule, expandVisitRule, isLocalDate, localTimeToInstant, nearestWorkingDay, normalizeVisitRule, planVisitDates,
   reconcileVisits, RecurrenceRuleError, termEndFor, type ExistingVisit,
 } from '../../shared/utils/recurrence'
+import { groupRows } from '../../shared/utils/collections'
 
 const weekdays = { workingDays: [1, 2, 3, 4, 5], closed: [] as string[] }
 
@@ -137,5 +138,23 @@ describe('regeneration', () => {
     const r = reconcileVisits([visit('late', '2026-06-01')], [], '2026-06-10')
     expect(r.cancel).toEqual([])
     expect(r.keep).toEqual(['late'])
+  })
+})
+
+describe('isLocalDate', () => {
+  it.each([
+    ['2027-03-01', true], ['2024-02-29', true], ['2000-02-29', true], ['2027-12-31', true], ['0001-01-01', true],
+    ['2023-02-29', false], ['1900-02-29', false], ['2027-04-31', false], ['2027-13-01', false], ['2027-00-10', false],
+    ['2027-01-00', false], ['2027-1-01', false], ['2027-01-01T00:00', false], [' 2027-01-01', false], ['', false],
+  ])('%s → %s (the Gregorian calendar: leap years every 4, not every 100, again every 400)', (d, ok) => {
+    expect(isLocalDate(d)).toBe(ok)
+  })
+})
+
+describe('groupRows', () => {
+  it('keeps each group in the order the rows came, groups in order of first appearance', () => {
+    const groups = groupRows([{ k: 'b', n: 1 }, { k: 'a', n: 2 }, { k: 'b', n: 3 }], r => r.k)
+    expect([...groups.keys()]).toEqual(['b', 'a'])
+    expect(groups.get('b')!.map(r => r.n)).toEqual([1, 3])
   })
 })

@@ -87,10 +87,16 @@ export class PlanBook {
     let totalDrive = 0
     let totalVisit = 0
     let over = 0
+    // With onlyPlannedDays, the technician-days that got a visit being planned.
+    let planned: Uint8Array | null = null
+    if (P.onlyPlannedDays) {
+      planned = new Uint8Array(this.routes.length)
+      for (let v = 0; v < P.visits.length; v++) if (this.tech[v]! >= 0 && P.lockedTech[v]! < 0) planned[this.tech[v]! * P.nDays + this.day[v]!] = 1
+    }
     for (let d = 0; d < P.nDays; d++) {
       for (let t = 0; t < P.techs.length; t++) {
         const r = this.routeOf(t, d)
-        if (!r || r.stops.length === 0) continue
+        if (!r || r.stops.length === 0 || (planned && !planned[t * P.nDays + d])) continue
         const checked = checkDayRoute(r, this.homes[t]!, P.visits, ids, { speedKmh: P.speedKmh, detourFactor: P.detourFactor })
         const date = plannerDayDate(P.firstDay + d)
         const technicianId = P.techs[t]!.id

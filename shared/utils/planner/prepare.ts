@@ -43,6 +43,7 @@ export interface PreparedInput {
   minutesPerKm: number
   previous: Int32Array
   dateOrder: 'day-month' | 'month-day'
+  onlyPlannedDays: boolean
 }
 
 function checkDate(value: unknown, field: string): LocalDate {
@@ -96,16 +97,23 @@ export function preparePlannerInput(input: PlannerInput): PreparedInput {
   const ids = new Set<string>()
   let lo = Infinity
   let hi = -Infinity
+  // A season has a few hundred distinct dates over many thousand visits: each is checked and counted once.
+  const dayNumbers = new Map<string, number>()
+  const dayOf = (value: unknown, field: string) => {
+    let n = typeof value === 'string' ? dayNumbers.get(value) : undefined
+    if (n === undefined) dayNumbers.set(value as string, (n = plannerDayNumber(checkDate(value, field))))
+    return n
+  }
   input.visits.forEach((v: PlannerVisit, i: number) => {
     const f = `visits[${i}]`
     checkId(v?.id, `${f}.id`)
     if (ids.has(v.id)) throw new PlannerInputError(`${f}.id`, `"${v.id}" is listed twice`)
     ids.add(v.id)
-    earliest[i] = plannerDayNumber(checkDate(v.windowEarliest, `${f}.windowEarliest`))
-    latest[i] = plannerDayNumber(checkDate(v.windowLatest, `${f}.windowLatest`))
+    earliest[i] = dayOf(v.windowEarliest, `${f}.windowEarliest`)
+    latest[i] = dayOf(v.windowLatest, `${f}.windowLatest`)
     if (latest[i]! < earliest[i]!) throw new PlannerInputError(`${f}.windowLatest`, 'the window ends before it starts')
     if (v.preferred !== undefined) {
-      preferred[i] = plannerDayNumber(checkDate(v.preferred, `${f}.preferred`))
+      preferred[i] = dayOf(v.preferred, `${f}.preferred`)
       if (preferred[i]! < earliest[i]! || preferred[i]! > latest[i]!) throw new PlannerInputError(`${f}.preferred`, 'must lie inside the window')
     }
     else {
@@ -129,7 +137,7 @@ export function preparePlannerInput(input: PlannerInput): PreparedInput {
       const t = techIndex.get(v.locked.technicianId)
       if (t === undefined) throw new PlannerInputError(`${f}.locked.technicianId`, `no technician "${String(v.locked.technicianId)}" in technicians`)
       lockedTech[i] = t
-      lockedDay[i] = plannerDayNumber(checkDate(v.locked.day, `${f}.locked.day`))
+      lockedDay[i] = dayOf(v.locked.day, `${f}.locked.day`)
       lo = Math.min(lo, lockedDay[i]!)
       hi = Math.max(hi, lockedDay[i]!)
     }
@@ -170,6 +178,6 @@ export function preparePlannerInput(input: PlannerInput): PreparedInput {
   return {
     visits: input.visits, techs: input.technicians, techIndex, firstDay, nDays, earliest, latest, preferred, duration,
     customerOf, customers, lockedTech, lockedDay, available, speedKmh, detourFactor, minutesPerKm: (detourFactor / speedKmh) * 60,
-    previous, dateOrder: input.dateOrder ?? 'day-month',
+    previous, dateOrder: input.dateOrder ?? 'day-month', onlyPlannedDays: input.onlyPlannedDays === true,
   }
 }

@@ -45,6 +45,13 @@ export interface PlannerInput {
   previousAssignments?: Readonly<Record<string, string>>
   /** How dates read in the reasons: 'day-month' (default) "1 Apr", 'month-day' "Apr 1". */
   dateOrder?: 'day-month' | 'month-day'
+  /**
+   * Answer only for the technician-days that got a visit being planned: `placed` and `days` (and
+   * the stats' days, km and minutes) leave out the days that hold nothing but locked visits, whose
+   * routes are then not checked. For callers that only write the new visits (a renewal batch next
+   * to a season of booked ones); the plan itself is the same.
+   */
+  onlyPlannedDays?: boolean
 }
 
 export interface PlannerPlacement {
