@@ -15,6 +15,7 @@ import { containsPattern } from '../utils/like'
 import { publicAppUrl } from '../utils/payments'
 import { recordAudit, recordAudits } from './audit'
 import { enqueueMails, type OutgoingMail } from './mail'
+import { readerContext } from './company'
 import { contactEmailsOf } from './recipients'
 
 type Db = Database | Tx
@@ -41,9 +42,9 @@ const listColumns = {
   reminderStage: invoices.reminderStage, providerError: invoices.providerError, lastPaymentError: invoices.lastPaymentError,
 }
 
-async function companyToday(companyId: string, db: Db = useDb()) {
-  const [c] = await db.select({ timeZone: companies.timeZone }).from(companies).where(eq(companies.id, companyId)).limit(1)
-  return localToday(c?.timeZone ?? 'UTC')
+/** The company's today, from the time zone read with the session (no query of its own). */
+async function companyToday(actor: SessionUser) {
+  return localToday((await readerContext(actor)).timeZone)
 }
 
 function listWhere(actor: SessionUser, q: Omit<InvoiceListQuery, 'page' | 'pageSize'>, today: string) {
@@ -106,7 +107,7 @@ async function listTotalsFromInvoices(q: InvoiceListQuery, cond: SQL | undefined
 }
 
 export async function listInvoices(actor: SessionUser, q: InvoiceListQuery) {
-  const today = await companyToday(actor.companyId)
+  const today = await companyToday(actor)
   const cond = listWhere(actor, q, today)
   const [rows, totals] = await Promise.all([
     useDb().select(listColumns).from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId))
@@ -133,7 +134,7 @@ const decimal = (minor: number) => (minor / 100).toFixed(2)
 
 /** The filtered invoices as CSV (amounts as decimals in the invoice's currency), at most EXPORT_LIMIT rows. */
 export async function exportInvoicesCsv(actor: SessionUser, q: Omit<InvoiceListQuery, 'page' | 'pageSize'>) {
-  const today = await companyToday(actor.companyId)
+  const today = await companyToday(actor)
   const rows = await useDb().select({ ...listColumns, paymentMethod: invoices.paymentMethod }).from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId))
     .where(listWhere(actor, q, today)).orderBy(...listOrder(q)).limit(EXPORT_LIMIT + 1)
   if (rows.length > EXPORT_LIMIT) throw httpError(400, `Invalid query: more than ${EXPORT_LIMIT} invoices match; narrow the dates or the status`, { fields: { from: 'Narrow the dates' } })
@@ -192,7 +193,7 @@ export async function getInvoice(actor: SessionUser, id: string) {
   const inv = await loadInvoice(actor, id)
   const lineRows = await invoiceLineRows(db, id)
   const document = await invoiceDocument(inv, db, lineRows)
-  const today = await companyToday(actor.companyId)
+  const today = await companyToday(actor)
   const lines = lineRows.map(l => ({ id: l.id, kind: l.kind, description: l.description, quantity: l.quantity, unitPriceMinor: l.unitPriceMinor, amountMinor: l.amountMinor, taxable: l.taxable }))
   const [contract] = inv.contractId
     ? await db.select({ id: contracts.id, planName: plans.name, termStart: contracts.termStart, termEnd: contracts.termEnd }).from(contracts).innerJoin(plans, eq(plans.id, contracts.planId)).where(eq(contracts.id, inv.contractId)).limit(1)
