@@ -12,12 +12,17 @@ import { httpError } from '../utils/errors'
 import { containsPattern } from '../utils/like'
 import { recordAudit } from './audit'
 
+type Bound = string | ReturnType<typeof sql.placeholder>
+/** The features one may see: the company's; for a customer (`customerId`), their own ones that are not archived. Values or placeholders. */
+function scopeWhere(companyId: Bound, customerId: Bound | null): SQL[] {
+  const where: SQL[] = [eq(waterFeatures.companyId, companyId)]
+  if (customerId !== null) where.push(eq(waterFeatures.customerId, customerId), isNull(waterFeatures.archivedAt))
+  return where
+}
+
 /** The features `actor` may see: the company's; a customer's own ones that are not archived. */
 export function featureScope(actor: SessionUser): SQL[] {
-  const where: SQL[] = [eq(waterFeatures.companyId, actor.companyId)]
-  const own = ownCustomerId(actor)
-  if (own) where.push(eq(waterFeatures.customerId, own), isNull(waterFeatures.archivedAt))
-  return where
+  return scopeWhere(actor.companyId, ownCustomerId(actor))
 }
 
 /** Volume used for dosing: the measured figure when the owner entered one. */
@@ -87,10 +92,10 @@ const featureColumns = {
 }
 const staffFeature = preparedQuery(db => db.select(featureColumns).from(waterFeatures)
   .innerJoin(sites, eq(sites.id, waterFeatures.siteId)).innerJoin(customers, eq(customers.id, waterFeatures.customerId))
-  .where(and(eq(waterFeatures.id, sql.placeholder('id')), eq(waterFeatures.companyId, sql.placeholder('companyId')))).limit(1).prepare('feature_for_staff'))
+  .where(and(eq(waterFeatures.id, sql.placeholder('id')), ...scopeWhere(sql.placeholder('companyId'), null))).limit(1).prepare('feature_for_staff'))
 const customerFeature = preparedQuery(db => db.select(featureColumns).from(waterFeatures)
   .innerJoin(sites, eq(sites.id, waterFeatures.siteId)).innerJoin(customers, eq(customers.id, waterFeatures.customerId))
-  .where(and(eq(waterFeatures.id, sql.placeholder('id')), eq(waterFeatures.companyId, sql.placeholder('companyId')), eq(waterFeatures.customerId, sql.placeholder('customerId')), isNull(waterFeatures.archivedAt)))
+  .where(and(eq(waterFeatures.id, sql.placeholder('id')), ...scopeWhere(sql.placeholder('companyId'), sql.placeholder('customerId'))))
   .limit(1).prepare('feature_for_customer'))
 
 export async function getFeature(actor: SessionUser, id: string) {

@@ -4,7 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
 import { api, baseUrl, demo, tokenFor } from '../helpers/api'
 import { localToday } from '../../shared/utils/company-time'
-import { ARTIFACTS, launch, shot, signInThroughForm, VIEWPORTS, waitForHydration } from '../helpers/browser'
+import { ARTIFACTS, launch, openSchedule, shot, signInThroughForm, VIEWPORTS, waitForHydration } from '../helpers/browser'
 
 // A fixed day, far from the demo season and from whatever date the tests run on:
 // Monday 2 June 2031 (the first Monday of June of a term starting 1 January 2031).
@@ -54,16 +54,10 @@ async function boardDay(label: string, count: number) {
 }
 
 describe('the schedule board: many visits at once, and visits that will not happen', () => {
-  for (const [size, viewport] of Object.entries(VIEWPORTS)) {
+  for (const size of Object.keys(VIEWPORTS) as Array<keyof typeof VIEWPORTS>) {
     it(`the owner selects several visits and gives them to another technician; skipped and cancelled visits say so (${size})`, async () => {
       const fx = await boardDay(size, 5)
-      const context = await browser.newContext({ viewport, isMobile: size === 'phone', hasTouch: size === 'phone' })
-      const page = await context.newPage()
-      await signInThroughForm(page, demo.owner)
-      await page.waitForURL(url => url.pathname === '/')
-      await page.goto(`${baseUrl()}/schedule`)
-      await waitForHydration(page)
-      await page.getByLabel('Go to date').fill(DAY)
+      const { context, page } = await openSchedule(browser, size, demo.owner, DAY)
       const day = page.locator(`section[data-day="${DAY}"]`)
       await day.getByText(fx.planned[0]!.name).waitFor()
 

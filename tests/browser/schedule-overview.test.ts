@@ -7,9 +7,9 @@ import type { Browser } from 'playwright-core'
 import * as schema from '../../server/db/schema'
 import { hashPassword } from '../../server/utils/password'
 import { BOARD_VISIT_LIMIT } from '../../shared/schemas/visits'
-import { baseUrl, DEMO_PASSWORD } from '../helpers/api'
+import { DEMO_PASSWORD } from '../helpers/api'
 import { closeTestDb, testDb } from '../helpers/billing-book'
-import { launch, shot, signInThroughForm, VIEWPORTS, waitForHydration } from '../helpers/browser'
+import { launch, openSchedule, shot, VIEWPORTS } from '../helpers/browser'
 
 // A fixed week far from the demo season and from whatever date the tests run on: Monday 7 June 2032.
 const MONDAY = '2032-06-07'
@@ -50,16 +50,10 @@ async function bigWeek(label: string) {
 }
 
 describe('the schedule of a large company', () => {
-  for (const [size, viewport] of Object.entries(VIEWPORTS)) {
+  for (const size of Object.keys(VIEWPORTS) as Array<keyof typeof VIEWPORTS>) {
     it(`the owner reads each technician's days, picks one, and moves a visit onto another technician's day (${size})`, async () => {
       const fx = await bigWeek(size)
-      const context = await browser.newContext({ viewport, isMobile: size === 'phone', hasTouch: size === 'phone' })
-      const page = await context.newPage()
-      await signInThroughForm(page, fx.ownerEmail)
-      await page.waitForURL(url => url.pathname === '/')
-      await page.goto(`${baseUrl()}/schedule`)
-      await waitForHydration(page)
-      await page.getByLabel('Go to date').fill(MONDAY)
+      const { context, page } = await openSchedule(browser, size, fx.ownerEmail, MONDAY)
       await expect(page.getByTestId('too-many').textContent()).resolves.toMatch(/more than 1,000 visits: too many to show as cards/)
       const overview = page.getByTestId('load-overview')
       // 1,100 visits of 20 minutes over five days for each busy technician: 110 a day, far over capacity, said in words.

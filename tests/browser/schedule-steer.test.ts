@@ -3,9 +3,9 @@ import { resolve } from 'node:path'
 import pg from 'pg'
 import { afterAll, beforeAll, describe, expect, inject, it } from 'vitest'
 import type { Browser, Page } from 'playwright-core'
-import { api, baseUrl, demo, tokenFor } from '../helpers/api'
+import { api, demo, tokenFor } from '../helpers/api'
 import { addDays } from '../../shared/utils/company-time'
-import { allowPageErrors, ARTIFACTS, launch, shot, signInThroughForm, VIEWPORTS, waitForHydration } from '../helpers/browser'
+import { allowPageErrors, ARTIFACTS, launch, openSchedule, shot, type VIEWPORTS } from '../helpers/browser'
 
 // Steering the planner from the board: moving one visit by hand (drag on a desktop, tap then tap
 // on a phone), the tray of what the planner could not place, and "plan these weeks again".
@@ -59,16 +59,9 @@ async function customersOnPlan(owner: string, label: string, year: number, seaso
 }
 
 async function openBoard(size: keyof typeof VIEWPORTS, day: string) {
-  const viewport = VIEWPORTS[size]
-  const context = await browser.newContext({ viewport, isMobile: size === 'phone', hasTouch: size === 'phone' })
-  const page = await context.newPage()
-  await signInThroughForm(page, demo.owner)
-  await page.waitForURL(url => url.pathname === '/')
-  await page.goto(`${baseUrl()}/schedule`)
-  await waitForHydration(page)
-  await page.getByLabel('Go to date').fill(day)
-  await page.locator(`section[data-day="${day}"]`).waitFor()
-  return { context, page }
+  const board = await openSchedule(browser, size, demo.owner, day)
+  await board.page.locator(`section[data-day="${day}"]`).waitFor()
+  return board
 }
 
 describe('moving one visit by hand on the board', () => {

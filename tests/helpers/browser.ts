@@ -93,3 +93,18 @@ export async function waitForHydration(page: Page) {
     return app?.$nuxt?.isHydrating === false
   }, undefined, { timeout: 30_000 })
 }
+
+/**
+ * A new context at a phone or desktop width (touch on the phone), signed in as `email` through the
+ * form, on the schedule board gone to `date`. The caller closes the context.
+ */
+export async function openSchedule(browser: Browser, size: keyof typeof VIEWPORTS, email: string, date: string) {
+  const context = await browser.newContext({ viewport: VIEWPORTS[size], isMobile: size === 'phone', hasTouch: size === 'phone' })
+  const page = await context.newPage()
+  await signInThroughForm(page, email)
+  await page.waitForURL(url => url.pathname === '/')
+  await page.goto(`${baseUrl()}/schedule`)
+  await waitForHydration(page)
+  await page.getByLabel('Go to date').fill(date)
+  return { context, page }
+}
