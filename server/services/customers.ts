@@ -5,6 +5,7 @@ import { isStaff, ownCustomerId, type SessionUser } from '../utils/auth'
 import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { containsPattern } from '../utils/like'
+import { keptForCompany, versionedCache } from '../utils/versioned-cache'
 import { recordAudit } from './audit'
 
 // Drizzle leaves column names unqualified in a one-table select, so the correlated subqueries
@@ -33,7 +34,15 @@ export interface CustomerListQuery {
   status: 'current' | 'archived' | 'all', kind?: CustomerInput['kind'], tag?: string
 }
 
-export async function listCustomers(actor: SessionUser, q: CustomerListQuery) {
+export async function listCustomers(actor: SessionUser, q: CustomerListQuery): Promise<CustomerList> {
+  return keptForCompany(customerLists, actor.companyId, ['customers'], `${ownCustomerId(actor) ?? ''}|${JSON.stringify(q)}`, () => buildCustomerList(actor, q))
+}
+
+export type CustomerList = Awaited<ReturnType<typeof buildCustomerList>>
+/** Pages kept per process until the company's customers, contacts, sites or features change (server/utils/versioned-cache.ts). */
+const customerLists = versionedCache<CustomerList>(1000)
+
+async function buildCustomerList(actor: SessionUser, q: CustomerListQuery) {
   const db = useDb()
   const where = scope(actor)
   if (q.status === 'current') where.push(isNull(customers.archivedAt))

@@ -13,6 +13,7 @@ import { httpError } from '../utils/errors'
 import { escapeHtml } from '../utils/html'
 import { containsPattern } from '../utils/like'
 import { publicAppUrl } from '../utils/payments'
+import { keptForCompany, versionedCache } from '../utils/versioned-cache'
 import { recordAudit, recordAudits } from './audit'
 import { enqueueMails, type OutgoingMail } from './mail'
 import { readerContext } from './company'
@@ -106,8 +107,16 @@ async function listTotalsFromInvoices(q: InvoiceListQuery, cond: SQL | undefined
   return { total: total?.n ?? 0, sums: totals.map(t => ({ currency: t.currency, totalMinor: Number(t.totalMinor), dueMinor: Number(t.dueMinor) })) }
 }
 
-export async function listInvoices(actor: SessionUser, q: InvoiceListQuery) {
+export async function listInvoices(actor: SessionUser, q: InvoiceListQuery): Promise<InvoiceList> {
   const today = await companyToday(actor)
+  return keptForCompany(invoiceLists, actor.companyId, ['invoices', 'customers'], `${ownCustomerId(actor) ?? ''}|${today}|${JSON.stringify(q)}`, () => buildInvoiceList(actor, q, today))
+}
+
+export type InvoiceList = Awaited<ReturnType<typeof buildInvoiceList>>
+/** Pages kept per process until the company's invoices or customers change (server/utils/versioned-cache.ts); the company's date is part of the key. */
+const invoiceLists = versionedCache<InvoiceList>(1000)
+
+async function buildInvoiceList(actor: SessionUser, q: InvoiceListQuery, today: string) {
   const cond = listWhere(actor, q, today)
   const [rows, totals] = await Promise.all([
     useDb().select(listColumns).from(invoices).innerJoin(customers, eq(customers.id, invoices.customerId))

@@ -9,6 +9,7 @@ import { ownCustomerId, type SessionUser } from '../utils/auth'
 import { preparedQuery, useDb } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { recordAudit } from './audit'
+import { keptForCompany, versionedCache } from '../utils/versioned-cache'
 import { releasedWords, takeTechnicianOff } from './technician-days'
 
 const DEFAULT_CAPACITY_MINUTES = 420
@@ -135,7 +136,20 @@ async function technicianDayLoads(companyId: string, from: string, to: string, c
  * range, or of the technician or day picked in it, when they are at most BOARD_VISIT_LIMIT.
  * With more, `visits` is empty and `tooMany` says so: never a cut list.
  */
-export async function board(actor: SessionUser, q: BoardQuery) {
+export async function board(actor: SessionUser, q: BoardQuery): Promise<Board> {
+  return keptForCompany(boards, actor.companyId, ['schedule', 'customers'], JSON.stringify(q), () => buildBoard(actor, q))
+}
+
+export type Board = Awaited<ReturnType<typeof buildBoard>>
+
+/**
+ * Boards are kept per process until the company's visits, staff, customers or sites change
+ * (server/utils/versioned-cache.ts); the day loads they show follow the same rows. Weighed by
+ * their visit cards, so a few month boards cannot hold the process's memory.
+ */
+const boards = versionedCache<Board>(500, { weigh: b => 1 + b.visits.length, maxWeight: 200_000 })
+
+async function buildBoard(actor: SessionUser, q: BoardQuery) {
   const db = useDb()
   const where: SQL[] = [eq(visits.companyId, actor.companyId), gte(visits.scheduledOn, q.from), lte(visits.scheduledOn, q.to)]
   if (!q.includeCancelled) where.push(ne(visits.status, 'cancelled'))

@@ -5,6 +5,7 @@ import { companies, customers, sites, staffProfiles, users, visits } from '../db
 import type { SessionUser } from '../utils/auth'
 import { preparedQuery, useDb } from '../utils/db'
 import { httpError } from '../utils/errors'
+import { keptForCompany, versionedCache } from '../utils/versioned-cache'
 import { recordAudit } from './audit'
 import { readerContext } from './company'
 import { featuresForVisits } from './schedule'
@@ -52,16 +53,30 @@ const dayVisits = preparedQuery(db => db.select({
  * yard), with the leg before each stop, and the expected end time. A hand-made order (route
  * positions) wins over the computed one.
  */
-export async function technicianDay(actor: SessionUser, q: { date?: string, technicianId?: string }) {
+export async function technicianDay(actor: SessionUser, q: { date?: string, technicianId?: string }): Promise<TechnicianDay> {
   const technicianId = actor.role === 'owner' && q.technicianId ? q.technicianId : actor.id
-  // The date from the company's time zone (read with the session), so the company, the
-  // technician and the visits load at once.
+  // The date from the company's time zone (read with the session).
   const { timeZone } = await readerContext(actor)
   const date = q.date ?? localToday(timeZone)
+  return keptForCompany(days, actor.companyId, ['schedule', 'customers'], `${technicianId}|${date}|${timeZone}`,
+    () => buildTechnicianDay(actor.companyId, technicianId, date, timeZone))
+}
+
+export type TechnicianDay = Awaited<ReturnType<typeof buildTechnicianDay>>
+
+/**
+ * Days are opened again and again (each technician's, all day long): each is kept per process
+ * until the company's visits, staff, contracts' features, customers or sites change
+ * (server/utils/versioned-cache.ts), so a warm request reads the two counters only.
+ */
+const days = versionedCache<TechnicianDay>(2000)
+
+async function buildTechnicianDay(companyId: string, technicianId: string, date: string, timeZone: string) {
+  // The company, the technician and the visits load at once.
   const [[company], [tech], rows] = await Promise.all([
-    companyBase().execute({ companyId: actor.companyId }),
-    technicianOf().execute({ technicianId, companyId: actor.companyId }),
-    dayVisits().execute({ companyId: actor.companyId, technicianId, date }),
+    companyBase().execute({ companyId }),
+    technicianOf().execute({ technicianId, companyId }),
+    dayVisits().execute({ companyId, technicianId, date }),
   ])
   if (!tech) throw httpError(404, 'No such technician')
 

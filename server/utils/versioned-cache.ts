@@ -1,5 +1,6 @@
-import { sql } from 'drizzle-orm'
-import type { ChangeTopic } from '../db/schema'
+import { and, eq, sql } from 'drizzle-orm'
+import { changeCounters, type ChangeTopic } from '../db/schema'
+import { preparedQuery } from './db'
 
 /**
  * Exact answers kept per process under the change counters their inputs raise
@@ -88,4 +89,21 @@ export function versionedCache<T>(max: number, opts: { weigh?: (value: T) => num
  */
 export function counterOf(topic: ChangeTopic, table: string, column: string) {
   return sql<string>`coalesce((select cc.version from change_counters cc where cc.topic = ${topic} and cc.subject_id = ${sql.identifier(table)}.${sql.identifier(column)}), 0)::text`
+}
+
+const companyCounters = preparedQuery(db => db.select({ topic: changeCounters.topic, version: changeCounters.version }).from(changeCounters)
+  .where(and(eq(changeCounters.subjectId, sql.placeholder('companyId')), sql`${changeCounters.topic} = any(${sql.placeholder('topics')}::text[])`))
+  .prepare('company_counters'))
+
+/**
+ * A company's answer kept under the counters of `topics` (one indexed read of them first, then
+ * the kept answer or a new computation). `key` must hold every other input of the answer: the
+ * caller's reach, the query, the company's date. With RILLBOOK_ANSWER_CACHE=0 it computes without
+ * reading the counters.
+ */
+export async function keptForCompany<T>(cache: VersionedCache<T>, companyId: string, topics: readonly ChangeTopic[], key: string, compute: () => Promise<T>): Promise<T> {
+  if (!enabled()) return compute()
+  const rows = await companyCounters().execute({ companyId, topics: [...topics] })
+  const of = new Map(rows.map(r => [r.topic, r.version]))
+  return cache.get(`${companyId}|${key}`, topics.map(t => of.get(t) ?? 0).join('.'), compute)
 }

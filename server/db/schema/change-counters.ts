@@ -12,9 +12,15 @@ import { bigint, pgTable, primaryKey, text, uuid } from 'drizzle-orm/pg-core'
 //   at its site (the trend charts' series).
 // - 'ranges' (company): its range profiles and companies row (time zone), which every feature's
 //   series also reads.
-// - 'invoices' (company): its invoices (the revenue view's receivables and invoiced figures).
+// - 'invoices' (company): its invoices (the revenue view's receivables and invoiced figures, the
+//   invoices table).
+// - 'customers' (company): its customers, their contacts, sites and water features, and its
+//   companies row (the customers list; the names and places on the invoices table, Today and the
+//   schedule board).
+// - 'schedule' (company): its visits, staff (users and staff profiles), which features each
+//   contract covers, and its companies row (Today and the schedule board).
 
-export const CHANGE_TOPICS = ['revenue', 'feature', 'ranges', 'invoices'] as const
+export const CHANGE_TOPICS = ['revenue', 'feature', 'ranges', 'invoices', 'customers', 'schedule'] as const
 export type ChangeTopic = (typeof CHANGE_TOPICS)[number]
 
 export const changeCounters = pgTable('change_counters', {
