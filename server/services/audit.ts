@@ -1,4 +1,4 @@
-import { and, count, desc, eq, like, type SQL } from 'drizzle-orm'
+import { and, count, desc, eq, like, sql, type SQL } from 'drizzle-orm'
 import { auditLog, users } from '../db/schema'
 import { useDb, type Database, type Tx } from '../utils/db'
 
@@ -17,18 +17,19 @@ export async function recordAudit(db: Database | Tx, entry: AuditEntry) {
   await recordAudits(db, [entry])
 }
 
-/** Appends many entries with one statement (batch jobs). */
+/**
+ * Appends many entries with one statement (batch jobs): the rows go as one JSON parameter, so a
+ * batch of thousands costs one parameter to build and send, not seven per row.
+ */
 export async function recordAudits(db: Database | Tx, entries: readonly AuditEntry[]) {
   if (!entries.length) return
-  await db.insert(auditLog).values(entries.map(entry => ({
-    action: entry.action,
-    companyId: entry.companyId ?? null,
-    actorUserId: entry.actorUserId ?? null,
-    subjectType: entry.subjectType,
-    subjectId: entry.subjectId,
-    detail: entry.detail ?? {},
-    ip: entry.ip ?? null,
-  })))
+  const rows = entries.map(e => ({
+    action: e.action, company_id: e.companyId ?? null, actor_user_id: e.actorUserId ?? null,
+    subject_type: e.subjectType ?? null, subject_id: e.subjectId ?? null, detail: e.detail ?? {}, ip: e.ip ?? null,
+  }))
+  await db.execute(sql`insert into ${auditLog} (action, company_id, actor_user_id, subject_type, subject_id, detail, ip)
+    select r.action, r.company_id, r.actor_user_id, r.subject_type, r.subject_id, coalesce(r.detail, '{}'::jsonb), r.ip
+    from jsonb_to_recordset(${JSON.stringify(rows)}::jsonb) as r(action text, company_id uuid, actor_user_id uuid, subject_type text, subject_id text, detail jsonb, ip text)`)
 }
 
 export async function listAudit(companyId: string, q: { page: number, pageSize: number, subjectId?: string, action?: string }) {

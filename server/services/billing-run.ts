@@ -12,7 +12,7 @@ import { queueInvoiceMails, raiseInvoicesInTx, type KeyedInvoice } from './invoi
 
 export const BILLING_TASK = 'billing:renew'
 /** Contracts renewed per transaction (and per planner run). */
-const RENEWAL_BATCH = 1000
+const RENEWAL_BATCH = 2000
 /** Invoices raised per transaction, and overdue reminders sent per transaction. */
 const INVOICE_BATCH = 500
 
@@ -122,6 +122,15 @@ async function billingRun(opts: BillingRunOptions) {
     return done
   }
   const invoiceBatch = Math.max(1, Math.trunc(opts.invoiceBatch ?? INVOICE_BATCH))
+  // Seconds spent on each step, over every company (the bench reports them; process start is not in them).
+  const seconds = { renewals: 0, terms: 0, invoices: 0, provider: 0, reminders: 0, total: 0 }
+  const started = performance.now()
+  let lap = started
+  const timed = (step: Exclude<keyof typeof seconds, 'total'>) => {
+    const t = performance.now()
+    seconds[step] += (t - lap) / 1000
+    lap = t
+  }
 
   const companyRows = await db.select({ id: companies.id, timeZone: companies.timeZone }).from(companies)
     .where(opts.companyId ? eq(companies.id, opts.companyId) : undefined).orderBy(asc(companies.id))
@@ -140,6 +149,7 @@ async function billingRun(opts: BillingRunOptions) {
     const renewals = await batched(renewable.map(c => c.id), RENEWAL_BATCH, b => (b.length === 1 ? `contract ${b[0]}` : `contracts ${b[0]} … ${b.at(-1)} (${b.length})`),
       (tx, b) => renewManyInTx(tx, b, { clock }))
     summary.renewed += renewals.length
+    timed('renewals')
 
     // 2. End terms that are over (renewed or not).
     await unit(`company ${company.id} terms`, async () => {
@@ -153,6 +163,7 @@ async function billingRun(opts: BillingRunOptions) {
       })
       summary.ended += ended
     })
+    timed('terms')
 
     // 3. Raise what is due, in batches: one transaction makes, numbers, issues and e-mails a batch.
     const due: KeyedInvoice[] = []
@@ -194,6 +205,7 @@ async function billingRun(opts: BillingRunOptions) {
     const raised = await batched(due, invoiceBatch, b => (b.length === 1 ? b[0]!.billingKey : `invoices ${b[0]!.billingKey} … ${b.at(-1)!.billingKey} (${b.length})`),
       (tx, b) => raiseInvoicesInTx(tx, b, today))
     summary.invoicesRaised += raised.length
+    timed('invoices')
 
     // 4. The provider's copies of due invoices that do not have one yet (or whose last try failed).
     if (paymentsConfigured()) {
@@ -213,6 +225,8 @@ async function billingRun(opts: BillingRunOptions) {
       }
     }
 
+    timed('provider')
+
     // 5. Overdue reminders: the highest stage reached, once (a missed day does not send two at once).
     const firstReminder = addDays(today, -REMINDER_DAYS[0])
     const overdueRows = await db.select({ id: invoices.id, dueDate: invoices.dueDate, stage: invoices.reminderStage }).from(invoices)
@@ -226,11 +240,13 @@ async function billingRun(opts: BillingRunOptions) {
     const sent = await batched(reminders, invoiceBatch, b => (b.length === 1 ? `invoice ${b[0]!.id} reminder` : `reminders of invoices ${b[0]!.id} … ${b.at(-1)!.id} (${b.length})`),
       (tx, b) => sendRemindersInTx(tx, company.id, b))
     summary.reminders += sent.length
+    timed('reminders')
   }
+  seconds.total = (performance.now() - started) / 1000
 
   await db.update(taskRuns).set({ status: errors.length ? 'done_with_errors' : 'done', finishedAt: new Date(), summary: { ...summary }, errors: errors.slice(0, 200), processed: units })
     .where(eq(taskRuns.id, run!.id))
-  return { runId: run!.id, ...summary, errors }
+  return { runId: run!.id, ...summary, errors, seconds }
 }
 
 /**

@@ -198,6 +198,19 @@ async function writeGeneration(tx: Tx, prepared: readonly Prepared[], placementO
   /** Visits the planner could not place: they wait unassigned on their preferred day, with the reason. */
   const movedUnplaced = new Map<string, GenerationResult['unplaced']>()
   const startsAt = new Map<string, string>()
+  // Most visits share a checklist (their template's with the season's safety lines): each distinct
+  // one goes once, and a row names it by its place, so a batch's parameter stays small.
+  const checklists: unknown[] = []
+  const checklistAt = new Map<string, number>()
+  const checklistIndex = (items: unknown) => {
+    const key = JSON.stringify(items)
+    let at = checklistAt.get(key)
+    if (at === undefined) {
+      checklistAt.set(key, (at = checklists.length))
+      checklists.push(items)
+    }
+    return at
+  }
   const startOf = (company: CompanyRow, day: LocalDate) => {
     const key = `${company.timeZone}|${company.dayStartTime}|${day}`
     let at = startsAt.get(key)
@@ -215,7 +228,7 @@ async function writeGeneration(tx: Tx, prepared: readonly Prepared[], placementO
         company_id: contract.companyId, contract_id: contract.id, template_id: t.id, customer_id: contract.customerId, site_id: siteId,
         visit_type: t.visitType, scheduled_on: placed.day, starts_at: startOf(company, placed.day), duration_minutes: t.durationMinutes,
         technician_id: placed.technicianId, unplaced_reason: placed.unplacedReason, generation_key: p.key,
-        checklist: withSafety(t.checklist.map(c => c.label), { visitType: t.visitType, date: placed.day, deepestM: g.deepestAt.get(siteId) ?? null, latitude: company.baseLatitude }),
+        checklist: checklistIndex(withSafety(t.checklist.map(c => c.label), { visitType: t.visitType, date: placed.day, deepestM: g.deepestAt.get(siteId) ?? null, latitude: company.baseLatitude })),
       })
     }
     const unplaced: GenerationResult['unplaced'] = []
@@ -239,10 +252,12 @@ async function writeGeneration(tx: Tx, prepared: readonly Prepared[], placementO
   const insertedOf = new Map<string, Map<string, { id: string, day: LocalDate, reason: string | null }>>()
   if (inserts.length) {
     const { rows } = await tx.execute<{ id: string, contract_id: string, generation_key: string, scheduled_on: string, unplaced_reason: string | null }>(sql`
+      with c as (select (n - 1)::int as at, value as checklist from jsonb_array_elements(${JSON.stringify(checklists)}::jsonb) with ordinality as e(value, n))
       insert into visits (company_id, contract_id, template_id, customer_id, site_id, visit_type, scheduled_on, starts_at, duration_minutes, technician_id, unplaced_reason, generation_key, checklist)
-      select v.company_id, v.contract_id, v.template_id, v.customer_id, v.site_id, v.visit_type::visit_type, v.scheduled_on, v.starts_at, v.duration_minutes, v.technician_id, v.unplaced_reason, v.generation_key, v.checklist
+      select v.company_id, v.contract_id, v.template_id, v.customer_id, v.site_id, v.visit_type::visit_type, v.scheduled_on, v.starts_at, v.duration_minutes, v.technician_id, v.unplaced_reason, v.generation_key, c.checklist
       from jsonb_to_recordset(${JSON.stringify(inserts)}::jsonb) as v(company_id uuid, contract_id uuid, template_id uuid, customer_id uuid, site_id uuid, visit_type text, scheduled_on date,
-        starts_at timestamptz, duration_minutes integer, technician_id uuid, unplaced_reason text, generation_key text, checklist jsonb)
+        starts_at timestamptz, duration_minutes integer, technician_id uuid, unplaced_reason text, generation_key text, checklist integer)
+      join c on c.at = v.checklist
       on conflict do nothing
       returning id, contract_id, generation_key, scheduled_on::text as scheduled_on, unplaced_reason`)
     for (const row of rows) {

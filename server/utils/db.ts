@@ -95,6 +95,18 @@ export async function withSessionLock<T>(name: string, fn: () => Promise<T>): Pr
 
 const DOWN_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', 'ENOTFOUND', '57P01', '57P02', '57P03', '08000', '08001', '08003', '08004', '08006'])
 
+/**
+ * True when PostgreSQL gave up a transaction because it met another at the same moment (a
+ * deadlock, e.g. on change counters raised in another order, or a serialization failure): the
+ * transaction was rolled back whole, so the same request may simply be sent again.
+ */
+export function isWriteConflict(err: unknown): boolean {
+  for (let e = err as { code?: string, cause?: unknown } | undefined, depth = 0; e && depth < 6; e = e.cause as typeof e, depth++) {
+    if (e.code === '40P01' || e.code === '40001') return true
+  }
+  return false
+}
+
 /** True when `err` (or its cause) says the database cannot be reached, rather than a bad query. */
 export function isDatabaseDown(err: unknown): boolean {
   for (let e = err as { code?: string, message?: string, cause?: unknown } | undefined, depth = 0; e && depth < 6; e = e.cause as typeof e, depth++) {
