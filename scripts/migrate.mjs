@@ -13,13 +13,23 @@ export function defaultDatabaseUrl() {
     || `postgres://postgres@127.0.0.1:${process.env.RILLBOOK_PG_PORT || 54329}/${process.env.RILLBOOK_PG_DATABASE || 'rillbook'}`
 }
 
+/** Any fixed key: every copy of this script that migrates the same database takes the same lock. */
+const MIGRATION_LOCK = 7_341_002
+
+/**
+ * Applies what is missing. Several instances deploying at once wait for each other on a session
+ * advisory lock, so the second finds the database up to date instead of applying it twice.
+ */
 export async function runMigrations(url = defaultDatabaseUrl()) {
-  const pool = new pg.Pool({ connectionString: url, max: 1 })
+  const client = new pg.Client({ connectionString: url })
+  await client.connect()
   try {
-    await migrate(drizzle(pool), { migrationsFolder: resolve(root, 'drizzle') })
+    await client.query('select pg_advisory_lock($1)', [MIGRATION_LOCK])
+    await migrate(drizzle(client), { migrationsFolder: resolve(root, 'drizzle') })
   }
   finally {
-    await pool.end()
+    // Ending the session releases the lock, also when a migration failed.
+    await client.end()
   }
 }
 

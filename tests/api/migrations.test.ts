@@ -44,6 +44,23 @@ describe('migrations', () => {
     expect(new Set(cols.rows.map(r => r.data_type))).toEqual(new Set(['timestamp with time zone']))
   })
 
+  it('apply once when several instances deploy at the same time', async () => {
+    const together = `${name}_together`
+    await adminQuery(`CREATE DATABASE "${together}"`)
+    try {
+      await Promise.all([1, 2, 3].map(() => runMigrations(urlFor(together))))
+      const c = new pg.Client({ connectionString: urlFor(together) })
+      await c.connect()
+      const { rows } = await c.query('select count(*)::int as n, count(distinct hash)::int as hashes from drizzle.__drizzle_migrations')
+      await c.end()
+      const journal = JSON.parse(readFileSync(new URL('../../drizzle/meta/_journal.json', import.meta.url), 'utf8'))
+      expect(rows[0]).toEqual({ n: journal.entries.length, hashes: journal.entries.length })
+    }
+    finally {
+      await adminQuery(`DROP DATABASE IF EXISTS "${together}" WITH (FORCE)`)
+    }
+  })
+
   it('carries old visit rules over to windows the way the app reads them', async () => {
     const c = new pg.Client({ connectionString: urlFor(name) })
     await c.connect()
