@@ -4,7 +4,7 @@ import { topUpLitresToMm } from '../../shared/utils/water-chemistry'
 import type { UnitSystem } from '../../shared/utils/water/format'
 import { alerts, companies, contracts, customers, doses, readings, taskWatermarks, visits, waterFeatures } from '../db/schema'
 import type { SessionUser } from '../utils/auth'
-import { useDb, type Tx } from '../utils/db'
+import { isLockTimeout, useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
 import { recordAudit } from './audit'
 import { notifyFeatureAlerts } from './alert-mail'
@@ -15,6 +15,10 @@ import { ownerEmails } from './recipients'
 import { escapeHtml } from '../utils/html'
 
 const WATERMARK = 'alerts:scan'
+/** The advisory key every statement writing readings holds shared until commit (migration 0027). */
+const READING_WRITERS = 'alerts:scan:readings'
+/** How long the scan waits for the readings being written right now before it leaves them to the next run. */
+const WRITERS_WAIT = '5s'
 /** Readings per batch of features: bounds the scan's memory however much history is new. */
 const BATCH_READINGS = 20_000
 export { ALERT_RULES }
@@ -27,6 +31,8 @@ export { ALERT_RULES }
  */
 export async function runAlertScan(opts: { now?: Date } = {}) {
   const now = opts.now ?? new Date()
+  const bound = await committedReadingsBound()
+  if (bound === null) return { skipped: true as const }
   return useDb().transaction(async (tx) => {
     const { rows: [lock] } = await tx.execute<{ ok: boolean }>(sql`select pg_try_advisory_xact_lock(hashtext(${WATERMARK})) as ok`)
     if (!lock?.ok) return { skipped: true as const }
@@ -34,7 +40,7 @@ export async function runAlertScan(opts: { now?: Date } = {}) {
     const [mark] = await tx.select().from(taskWatermarks).where(eq(taskWatermarks.name, WATERMARK)).for('update')
     const started = performance.now()
     const notifyIds: string[] = []
-    const scanned = await scanReadings(tx, mark!.lastSeq, now)
+    const scanned = await scanReadings(tx, mark!.lastSeq, Math.max(mark!.lastSeq, bound), now)
     notifyIds.push(...scanned.notify)
     // Time-based findings are raised together at the end, like a batch of readings.
     const timeSteps: Array<Step & { companyId: string }> = []
@@ -81,16 +87,36 @@ export async function runAlertScan(opts: { now?: Date } = {}) {
 }
 
 /**
- * Every reading past the watermark, in one run, in batches of whole features (at most about
+ * The highest reading seq at or below which nothing can still appear: every transaction writing
+ * readings holds a shared lock from its first write until it commits, so taking that lock
+ * exclusively for a moment waits for them, and whoever writes next draws a higher seq. Null when
+ * writers kept it longer than WRITERS_WAIT (the next run reads what they wrote).
+ */
+async function committedReadingsBound(): Promise<number | null> {
+  try {
+    return await useDb().transaction(async (tx) => {
+      await tx.execute(sql`select set_config('lock_timeout', ${WRITERS_WAIT}, true)`)
+      await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${READING_WRITERS}))`)
+      // A statement of its own: read committed takes its snapshot after the lock is held.
+      const { rows: [top] } = await tx.execute<{ end_seq: string }>(sql`select coalesce(max(seq), 0)::text as end_seq from ${readings}`)
+      return Number(top!.end_seq)
+    })
+  }
+  catch (err) {
+    if (isLockTimeout(err)) return null
+    throw err
+  }
+}
+
+/**
+ * Every reading past the watermark up to `endSeq` (see committedReadingsBound), in one run, in batches of whole features (at most about
  * BATCH_READINGS readings each, so memory stays bounded): each feature's new readings are applied
  * in the order they were taken (then arrival), so a reading that arrives late lands in its place,
  * and only the feature's newest new reading clears. Everything stays in the scan's one
  * transaction: batches are by feature, not by arrival, so there is no watermark to move between
  * them, and a failure leaves nothing half-done.
  */
-async function scanReadings(tx: Tx, afterSeq: number, now: Date) {
-  const { rows: [top] } = await tx.execute<{ end_seq: string | null }>(sql`select max(seq)::text as end_seq from ${readings} where seq > ${afterSeq}`)
-  const endSeq = top?.end_seq ? Number(top.end_seq) : afterSeq
+async function scanReadings(tx: Tx, afterSeq: number, endSeq: number, now: Date) {
   if (endSeq === afterSeq) return { endSeq, count: 0, notify: [] as string[] }
   // Many short queries over a large table: compiling each one (JIT) costs more than it saves.
   await tx.execute(sql`set local jit = off`)

@@ -101,8 +101,18 @@ const DOWN_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', 
  * transaction was rolled back whole, so the same request may simply be sent again.
  */
 export function isWriteConflict(err: unknown): boolean {
+  return hasErrorCode(err, '40P01', '40001')
+}
+
+/** True when a waited-for lock was not granted within the transaction's `lock_timeout`. */
+export function isLockTimeout(err: unknown): boolean {
+  return hasErrorCode(err, '55P03')
+}
+
+/** True when `err` or an error it wraps (Drizzle wraps the driver's) carries one of these SQLSTATEs. */
+function hasErrorCode(err: unknown, ...codes: string[]): boolean {
   for (let e = err as { code?: string, cause?: unknown } | undefined, depth = 0; e && depth < 6; e = e.cause as typeof e, depth++) {
-    if (e.code === '40P01' || e.code === '40001') return true
+    if (e.code && codes.includes(e.code)) return true
   }
   return false
 }

@@ -40,6 +40,8 @@ class ReferenceScan {
   mails: string[][] = []
   seen: ScannedReading[] = []
   run(batch: ScannedReading[]) {
+    // A reading saved again replaces what was seen of it.
+    this.seen = this.seen.filter(q => !batch.some(r => r.id === q.id))
     const notify: typeof this.alerts = []
     const inOrder = [...batch].sort((a, b) => a.takenAt.getTime() - b.takenAt.getTime())
     for (const r of inOrder) {
@@ -91,11 +93,24 @@ async function book() {
   return { companyId, a: await feature('Koi pond'), b: await feature('Rill') }
 }
 
+const readingRows = (companyId: string, tests: Array<Test & { id?: string }>) =>
+  tests.map(t => ({ id: t.id ?? randomUUID(), companyId, featureId: t.featureId, takenAt: t.takenAt, pH: t.pH ?? null, evaluation: t.results as never, overall: 'ok' as const, source: 'technician' as const }))
+const asScanned = (rows: ReturnType<typeof readingRows>): ScannedReading[] =>
+  rows.map(r => ({ id: r.id, companyId: r.companyId, featureId: r.featureId, visitId: null, takenAt: r.takenAt, pH: r.pH, temperatureC: null, khMgL: null, waterLevelMm: null, evaluation: r.evaluation }))
+
 /** Saves tests in the order given (their arrival order), in one statement, and returns them as the scan reads them. */
-async function arrive(companyId: string, tests: Test[]): Promise<ScannedReading[]> {
-  const rows = tests.map(t => ({ id: randomUUID(), companyId, featureId: t.featureId, takenAt: t.takenAt, pH: t.pH ?? null, evaluation: t.results as never, overall: 'ok' as const, source: 'technician' as const }))
-  await testDb().insert(schema.readings).values(rows)
-  return rows.map(r => ({ id: r.id, companyId, featureId: r.featureId, visitId: null, takenAt: r.takenAt, pH: r.pH, temperatureC: null, khMgL: null, waterLevelMm: null, evaluation: r.evaluation }))
+async function arrive(companyId: string, tests: Test[], db: Pick<ReturnType<typeof testDb>, 'insert'> = testDb()): Promise<ScannedReading[]> {
+  const rows = readingRows(companyId, tests)
+  await db.insert(schema.readings).values(rows)
+  return asScanned(rows)
+}
+
+/** Saves a test again under its id, as a resubmitted visit record does (insert, or update on conflict). */
+async function saveAgain(companyId: string, test: Test & { id: string }): Promise<ScannedReading[]> {
+  const rows = readingRows(companyId, [test])
+  const { id: _id, ...set } = rows[0]!
+  await testDb().insert(schema.readings).values(rows).onConflictDoUpdate({ target: schema.readings.id, set })
+  return asScanned(rows)
 }
 
 async function scanState(companyId: string) {
@@ -160,5 +175,54 @@ describe('the set-based alert scan against a reading-by-reading reference', () =
     ref.run(run3)
     await check()
     expect(ref.alerts.filter(x => x.status === 'open').map(x => x.subjectKey).sort()).toEqual([`reading:${b}:nitriteMgL`])
+  }, 120_000)
+
+  it('reads a test whose transaction commits after a later one, and a test saved again with other values', async () => {
+    const { companyId, a, b } = await book()
+    const ref = new ReferenceScan()
+    const check = async () => {
+      const got = await scanState(companyId)
+      expect(sorted(got.alerts)).toEqual(sorted(ref.alerts))
+      expect(sorted(got.mails)).toEqual(sorted(ref.mails))
+    }
+    const pool = testDb()
+    const scanWaits = async () => (await pool.execute<{ n: number }>(sql`select count(*)::int as n from pg_locks where locktype = 'advisory' and not granted`)).rows[0]!.n > 0
+
+    // A's test is written in a transaction that stays open; B's, written after it (a higher seq),
+    // commits first. The scan starts while A's is still open; A's commits once the scan waits for it
+    // (or, if it never waits, once it has finished).
+    let commitA!: () => void
+    const gate = new Promise<void>((r) => { commitA = r })
+    let lateA!: ScannedReading[]
+    const written = new Promise<void>((r) => {
+      void pool.transaction(async (tx) => {
+        lateA = await arrive(companyId, [{ featureId: a, takenAt: at(1), pH: 6.0, results: [result('pH', 6.0, 'act')] }], tx)
+        r()
+        await gate
+      })
+    })
+    await written
+    const earlyB = await arrive(companyId, [{ featureId: b, takenAt: at(1), results: [result('nitriteMgL', 0.3, 'watch')] }])
+    let finished = false
+    const scan1 = runScan().finally(() => { finished = true })
+    while (!finished && !(await scanWaits())) await new Promise(r => setTimeout(r, 50))
+    commitA()
+    await scan1
+    await runScan()
+    ref.run([...lateA, ...earlyB])
+    await check()
+    expect(ref.alerts.map(x => x.subjectKey).sort()).toEqual([`reading:${a}:pH`, `reading:${b}:nitriteMgL`].sort())
+
+    // B's test saved again with nitrite now at the act level: the next scan reads it again.
+    const id = earlyB[0]!.id
+    const again = await saveAgain(companyId, { id, featureId: b, takenAt: at(1), results: [result('nitriteMgL', 0.9, 'act')] })
+    expect((await runScan()).readingsScanned).toBe(1)
+    ref.run(again)
+    await check()
+    expect(ref.alerts.find(x => x.subjectKey === `reading:${b}:nitriteMgL`)).toMatchObject({ severity: 'act', status: 'open' })
+    // Saved again unchanged (a resubmission of the same form): nothing new to read.
+    await saveAgain(companyId, { id, featureId: b, takenAt: at(1), results: [result('nitriteMgL', 0.9, 'act')] })
+    expect((await runScan()).readingsScanned).toBe(0)
+    await check()
   }, 120_000)
 })

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { isDatabaseDown, isWriteConflict } from '../../server/utils/db'
+import { isDatabaseDown, isLockTimeout, isWriteConflict } from '../../server/utils/db'
 
 // Errors as pg raises them (a DatabaseError with PostgreSQL's SQLSTATE in `code`) and as Drizzle
 // wraps them (its query error, with the pg error as `cause`). SQLSTATEs from PostgreSQL's
@@ -23,5 +23,14 @@ describe('database errors the server answers with 503', () => {
     expect(isDatabaseDown(wrapped(pgError('40P01', 'deadlock detected')))).toBe(false)
     expect(isWriteConflict(wrapped(pgError('57P01', 'terminating connection due to administrator command')))).toBe(false)
     expect(isDatabaseDown(wrapped(pgError('57P01', 'terminating connection due to administrator command')))).toBe(true)
+  })
+})
+
+describe('a lock not granted in time', () => {
+  it('is told apart from a deadlock and from any other error', () => {
+    expect(isLockTimeout(wrapped(pgError('55P03', 'canceling statement due to lock timeout')))).toBe(true)
+    expect(isLockTimeout(wrapped(pgError('40P01', 'deadlock detected')))).toBe(false)
+    expect(isWriteConflict(wrapped(pgError('55P03', 'canceling statement due to lock timeout')))).toBe(false)
+    expect(isLockTimeout(new Error('plain'))).toBe(false)
   })
 })
