@@ -5,8 +5,8 @@ import { INVOICE_AUDIT_ACTIONS, INVOICE_STATUS_LABELS, type PaymentMismatch } fr
 import type { SessionUser } from '../utils/auth'
 import { useDb, type Tx } from '../utils/db'
 import { httpError } from '../utils/errors'
-import { closeOnProvider, paymentsConfigured, publicAppUrl, usePayments, type Stripe } from '../utils/payments'
-import { stateFromEvent, stateFromProvider, type ClosingState } from '../utils/payment-states'
+import { closeOnProvider, createProviderCustomer, createProviderInvoice, issueProviderInvoice, paymentsConfigured, providerInvoice, publicAppUrl, type Stripe } from '../utils/payments'
+import { stateFromEvent, type ClosingState } from '../utils/payment-states'
 import { recordAudit } from './audit'
 import { loadInvoice, queueInvoiceMail } from './invoices'
 import { contactEmails } from './recipients'
@@ -15,7 +15,6 @@ type InvoiceRow = typeof invoices.$inferSelect
 
 /** Every provider call carries a key made from our own ids, so a retried step never acts twice. */
 const key = (...parts: string[]) => `rillbook-${parts.join('-')}`
-const unix = (d: string) => Math.floor(new Date(`${d}T23:59:59Z`).getTime() / 1000)
 
 function describe(err: unknown) {
   return err instanceof Error ? err.message : String(err)
@@ -35,41 +34,32 @@ export async function syncInvoiceToProvider(invoiceId: string): Promise<{ ok: tr
   if (inv.providerSyncedAt) return { ok: true, url: inv.providerHostedUrl }
   if (!paymentsConfigured()) return { ok: false, error: 'Online payments are not configured' }
   try {
-    const stripe = usePayments()
     const [cu] = await db.select().from(customers).where(eq(customers.id, inv.customerId)).limit(1)
     let customerRef = cu!.paymentCustomerId
     if (!customerRef) {
       const [email] = await contactEmails(db, cu!.id, 'invoices')
-      const made = await stripe.customers.create({ name: cu!.name, email, metadata: { rillbook_customer_id: cu!.id } }, { idempotencyKey: key('customer', cu!.id) })
-      customerRef = made.id
+      customerRef = await createProviderCustomer({ id: cu!.id, name: cu!.name, email }, key('customer', cu!.id))
       await db.update(customers).set({ paymentCustomerId: customerRef }).where(eq(customers.id, cu!.id))
     }
     let ref = inv.providerInvoiceId
     if (!ref) {
-      const made = await stripe.invoices.create({
-        customer: customerRef, collection_method: 'send_invoice', due_date: unix(inv.dueDate!), currency: inv.currency.toLowerCase(),
-        auto_advance: false, description: `Invoice ${inv.number}`,
-        metadata: { rillbook_invoice_id: inv.id, rillbook_number: inv.number!, return_url: `${publicAppUrl()}/portal/invoices/${inv.id}?paid=1` },
-      }, { idempotencyKey: key('invoice', inv.id) })
-      ref = made.id
+      ref = await createProviderInvoice({
+        id: inv.id, number: inv.number!, customerRef, dueDate: inv.dueDate!, currency: inv.currency, returnUrl: `${publicAppUrl()}/portal/invoices/${inv.id}?paid=1`,
+      }, key('invoice', inv.id))
       await db.update(invoices).set({ providerInvoiceId: ref }).where(eq(invoices.id, inv.id))
     }
-    let remote = await stripe.invoices.retrieve(ref)
-    if (stateFromProvider(remote.status) === 'preparing') {
+    let remote = await providerInvoice(ref)
+    if (remote.state === 'preparing') {
       const lines = await db.select().from(invoiceLines).where(eq(invoiceLines.invoiceId, inv.id)).orderBy(asc(invoiceLines.position))
-      for (const l of lines) {
-        await stripe.invoiceItems.create({ customer: customerRef, invoice: ref, amount: l.amountMinor, currency: inv.currency.toLowerCase(), description: l.quantity === 1 ? l.description : `${l.description} (× ${l.quantity})` }, { idempotencyKey: key('line', l.id) })
-      }
-      if (inv.taxMinor !== 0) {
-        await stripe.invoiceItems.create({ customer: customerRef, invoice: ref, amount: inv.taxMinor, currency: inv.currency.toLowerCase(), description: `Sales tax (${formatTaxRate(inv.taxRateBasisPoints)})` }, { idempotencyKey: key('tax', inv.id) })
-      }
-      remote = await stripe.invoices.finalizeInvoice(ref, {}, { idempotencyKey: key('finalize', inv.id) })
+      const items = lines.map(l => ({ amountMinor: l.amountMinor, description: l.quantity === 1 ? l.description : `${l.description} (× ${l.quantity})`, idempotencyKey: key('line', l.id) }))
+      if (inv.taxMinor !== 0) items.push({ amountMinor: inv.taxMinor, description: `Sales tax (${formatTaxRate(inv.taxRateBasisPoints)})`, idempotencyKey: key('tax', inv.id) })
+      remote = await issueProviderInvoice(ref, customerRef, inv.currency, items, key('finalize', inv.id))
     }
-    if (remote.amount_due !== inv.totalMinor - inv.amountPaidMinor && stateFromProvider(remote.status) === 'due') {
-      throw new Error(`The provider's copy asks for ${remote.amount_due} but the invoice is for ${inv.totalMinor - inv.amountPaidMinor}`)
+    if (remote.amountDueMinor !== inv.totalMinor - inv.amountPaidMinor && remote.state === 'due') {
+      throw new Error(`The provider's copy asks for ${remote.amountDueMinor} but the invoice is for ${inv.totalMinor - inv.amountPaidMinor}`)
     }
-    await db.update(invoices).set({ providerHostedUrl: remote.hosted_invoice_url ?? null, providerSyncedAt: new Date(), providerError: null }).where(eq(invoices.id, inv.id))
-    return { ok: true, url: remote.hosted_invoice_url ?? null }
+    await db.update(invoices).set({ providerHostedUrl: remote.hostedUrl, providerSyncedAt: new Date(), providerError: null }).where(eq(invoices.id, inv.id))
+    return { ok: true, url: remote.hostedUrl }
   }
   catch (err) {
     const error = describe(err)

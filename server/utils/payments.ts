@@ -62,6 +62,40 @@ export async function closeOnProvider(ref: string, to: ClosingState, idempotency
   return 'closed'
 }
 
+/** What the service needs to know of the provider's copy of an invoice. */
+export interface ProviderInvoice { state: ReturnType<typeof stateFromProvider>, amountDueMinor: number, hostedUrl: string | null }
+const asProviderInvoice = (remote: Stripe.Invoice): ProviderInvoice =>
+  ({ state: stateFromProvider(remote.status), amountDueMinor: remote.amount_due, hostedUrl: remote.hosted_invoice_url ?? null })
+
+/** The provider's customer for one of ours; returns its reference. */
+export async function createProviderCustomer(customer: { id: string, name: string, email: string | undefined }, idempotencyKey: string): Promise<string> {
+  const made = await usePayments().customers.create({ name: customer.name, email: customer.email, metadata: { rillbook_customer_id: customer.id } }, { idempotencyKey })
+  return made.id
+}
+
+/** An empty invoice to be paid on the provider's hosted page by its due date; returns its reference. */
+export async function createProviderInvoice(invoice: { id: string, number: string, customerRef: string, dueDate: string, currency: string, returnUrl: string }, idempotencyKey: string): Promise<string> {
+  const made = await usePayments().invoices.create({
+    customer: invoice.customerRef, collection_method: 'send_invoice', due_date: Math.floor(new Date(`${invoice.dueDate}T23:59:59Z`).getTime() / 1000),
+    currency: invoice.currency.toLowerCase(), auto_advance: false, description: `Invoice ${invoice.number}`,
+    metadata: { rillbook_invoice_id: invoice.id, rillbook_number: invoice.number, return_url: invoice.returnUrl },
+  }, { idempotencyKey })
+  return made.id
+}
+
+export async function providerInvoice(ref: string): Promise<ProviderInvoice> {
+  return asProviderInvoice(await usePayments().invoices.retrieve(ref))
+}
+
+/** Adds the lines (each with its own idempotency key) to an invoice still being prepared there, then issues it. */
+export async function issueProviderInvoice(ref: string, customerRef: string, currency: string, lines: Array<{ amountMinor: number, description: string, idempotencyKey: string }>, idempotencyKey: string): Promise<ProviderInvoice> {
+  const stripe = usePayments()
+  for (const l of lines) {
+    await stripe.invoiceItems.create({ customer: customerRef, invoice: ref, amount: l.amountMinor, currency: currency.toLowerCase(), description: l.description }, { idempotencyKey: l.idempotencyKey })
+  }
+  return asProviderInvoice(await stripe.invoices.finalizeInvoice(ref, {}, { idempotencyKey }))
+}
+
 /** The app's public address, for links in e-mails and the return link from the payment page. */
 export function publicAppUrl(): string {
   return (process.env.RILLBOOK_PUBLIC_URL || process.env.AUTH_ORIGIN || `http://127.0.0.1:${process.env.PORT || process.env.NITRO_PORT || 3000}`).replace(/\/$/, '')
