@@ -1,5 +1,5 @@
 import { and, asc, count, desc, eq, ilike, isNotNull, isNull, or, sql, type SQL } from 'drizzle-orm'
-import type { FeatureInput, FeatureUpdateInput } from '../../shared/schemas/features'
+import { equipmentSchema, type FeatureInput, type FeatureUpdateInput } from '../../shared/schemas/features'
 import type { FeatureKind, FeatureShape, RangeTable } from '../../shared/types/water'
 import {
   DEFAULT_PROFILES, featureSurfaceAreaM2, featureVolumeLitres, mergeRanges, profileKeyForKind,
@@ -98,13 +98,17 @@ const customerFeature = preparedQuery(db => db.select(featureColumns).from(water
   .where(and(eq(waterFeatures.id, sql.placeholder('id')), ...scopeWhere(sql.placeholder('companyId'), sql.placeholder('customerId'))))
   .limit(1).prepare('feature_for_customer'))
 
+const NO_EQUIPMENT = equipmentSchema.parse({})
+
 export async function getFeature(actor: SessionUser, id: string) {
   const own = ownCustomerId(actor)
   const [row] = own
     ? await customerFeature().execute({ id, companyId: actor.companyId, customerId: own })
     : await staffFeature().execute({ id, companyId: actor.companyId })
   if (!row) throw httpError(404, 'No such water feature')
-  const { companyId: _c, ...feature } = row.feature
+  const { companyId: _c, ...stored } = row.feature
+  // A row written before a kind of equipment existed lacks its key: it reads as the default (none).
+  const feature = { ...stored, equipment: { ...NO_EQUIPMENT, ...stored.equipment } }
   const volumeL = feature.measuredVolumeL ?? feature.computedVolumeL
   const totalFlowLph = feature.equipment.pumps.reduce((sum, p) => sum + p.ratedFlowLph, 0)
   const { profile, ranges } = await rangesFor(actor.companyId, feature)

@@ -448,4 +448,15 @@ describe('the cases from the issue', () => {
     const rows = await db.select().from(schema.contractFeatures).where(and(eq(schema.contractFeatures.contractId, ids.contract!)))
     expect(rows.map(f => f.featureId)).toEqual([ids.featureB])
   })
+
+  it('a feature stored without some kinds of equipment (an older row) reads as having none of them, and a PATCH adds them', async () => {
+    await db.update(schema.waterFeatures).set({ equipment: { filter: null } as never }).where(eq(schema.waterFeatures.id, ids.featureB!))
+    const read = await api(`/api/features/${ids.featureB}`, { token: tokens.owner })
+    expect(read.status, JSON.stringify(read.body)).toBe(200)
+    expect(read.body.equipment.pumps).toEqual([])
+    expect(read.body).toMatchObject({ totalPumpFlowLph: 0, turnoverPerHour: null })
+    const patched = await api(`/api/features/${ids.featureB}`, { method: 'PATCH', token: tokens.owner, body: { equipment: { pumps: [{ name: 'Stream pump', role: 'stream', ratedFlowLph: 6000 }] } } })
+    expect(patched.status, JSON.stringify(patched.body)).toBe(200)
+    expect((await api(`/api/features/${ids.featureB}`, { token: tokens.owner })).body.totalPumpFlowLph).toBe(6000)
+  })
 })
