@@ -18,7 +18,6 @@ describe('alerts in the browser', () => {
     it(`the owner sees open alerts on the home page and works them in the inbox (${size})`, async () => {
       const context = await browser.newContext({ viewport, isMobile: size === 'phone', hasTouch: size === 'phone' })
       const page = await context.newPage()
-      page.on('dialog', d => d.accept('Checked on site'))
       await signInThroughForm(page, demo.owner)
       await page.waitForURL(url => url.pathname === '/')
       await page.getByTestId('alert-counts').waitFor()
@@ -31,6 +30,23 @@ describe('alerts in the browser', () => {
       const before = (await api('/api/alerts?status=acknowledged&pageSize=100', { token: await tokenFor(demo.owner) })).body.total
       await page.getByRole('button', { name: 'Acknowledge' }).first().click()
       await expect.poll(async () => (await api('/api/alerts?status=acknowledged&pageSize=100', { token: await tokenFor(demo.owner) })).body.total).toBe(before + 1)
+      if (size === 'phone') {
+        // Each alert is a card: its actions are on screen without scrolling sideways.
+        const acknowledge = page.getByRole('button', { name: 'Acknowledge' }).first()
+        await acknowledge.waitFor()
+        const box = await acknowledge.boundingBox()
+        expect(box!.x + box!.width).toBeLessThanOrEqual(viewport.width)
+        expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(viewport.width)
+      }
+      // Resolving asks what was done, in place: empty is refused, a note resolves it.
+      const resolvedBefore = (await api('/api/alerts?status=resolved&pageSize=100', { token: await tokenFor(demo.owner) })).body.total
+      await page.getByRole('button', { name: 'Resolve' }).first().click()
+      await page.getByRole('button', { name: 'Save and resolve' }).click()
+      await page.getByText('Say what was done').waitFor()
+      await shot(page, `alerts-resolve-empty-${size}`)
+      await page.getByLabel('What was done?').fill('Partial water change; retested, back in range')
+      await page.getByRole('button', { name: 'Save and resolve' }).click()
+      await expect.poll(async () => (await api('/api/alerts?status=resolved&pageSize=100', { token: await tokenFor(demo.owner) })).body.total).toBe(resolvedBefore + 1)
       await context.close()
     })
   }
